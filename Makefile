@@ -1,0 +1,18 @@
+# The two set-up commands of the README. Both are idempotent on a fresh Debian 12 machine.
+.PHONY: demo test build bench clean
+
+BUILD ?= build
+
+build:
+	scripts/setup.sh
+
+# Set up, build and run the main job on the bundled demo recipe.
+demo: build
+	scripts/demo.sh
+
+# Set up, build and run every test.
+test: build
+	cd $(BUILD) && ctest --output-on-failure -j 2
+
+clean:
+	rm -rf $(BUILD)
