@@ -18,6 +18,7 @@ enum class Stream : std::uint32_t {
   physiology = 3,    // subject-to-subject variation of model parameters
   sources = 4,       // subject-to-subject variation of sound sources
   transmission = 5,  // per-subject transmission variation
+  plan_parameters = 100,  // + the quantity's fixed slot (recipe/parameters.hpp): one sub-stream each
   noise_base = 1000,
 };
 
