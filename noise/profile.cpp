@@ -266,6 +266,9 @@ NoiseProfile parse_noise_profile(const toml::table& table, const std::string& ke
     } else {
       items.push_back(section("recording"));
     }
+    if (items.size() > kMaxRecordings)
+      top.fail(*n, key_path + ".recording", fmt::format("[{} tables]", items.size()),
+               fmt::format("at most {} recordings per profile", kMaxRecordings));
     for (std::size_t i = 0; i < items.size(); ++i) {
       std::string k = n->is_array() ? fmt::format("{}.recording[{}]", key_path, i) : key_path + ".recording";
       Reader r(*items[i], k, file, {"enabled", "file", "level_db", "loop", "random_offset"});

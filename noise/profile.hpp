@@ -107,6 +107,9 @@ struct RecordingNoise {
   std::shared_ptr<const RecordingAudio> audio;
 };
 
+// Stream ids leave room for this many recordings per profile (noise/processes.hpp).
+inline constexpr std::size_t kMaxRecordings = 16;
+
 struct NoiseProfile {
   std::string name;
   SensorNoise sensor_white;

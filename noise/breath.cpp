@@ -1,0 +1,72 @@
+// Breath sounds at the chest wall, gated by the respiration phase. Spectrum after Gavriely,
+// Nissan, Rubin & Cugell 1995 ("Spectral characteristics of chest wall breath sounds in normal
+// subjects", Thorax 50:1292): flat to a corner of a few hundred Hz, then falling about
+// -13 to -15 dB/octave in inspiration, with an upper limit near 700-1000 Hz. Inspiration is
+// louder than expiration; the same spectral shape is used for both (a simplification).
+#include <algorithm>
+#include <cmath>
+
+#include "noise/processes.hpp"
+#include "noise/spectral.hpp"
+
+namespace stethogen::noise {
+
+namespace {
+
+// Breath sounds differ more between chest sites than room noise does.
+constexpr double kBreathSiteSpreadDb = 3.0;
+// Extra power roll-off above the upper limit, so the band ends there rather than fading slowly.
+constexpr double kUpperRolloffDbPerOctave = -60.0;
+constexpr double kDbPerOctaveToExponent = 1.0 / (20.0 * 0.30102999566398120);  // amplitude exponent
+// The envelope is smooth over a breath (seconds): evaluate the phase every few samples.
+constexpr std::size_t kEnvelopeStep = 8;
+
+double breath_amplitude(const BreathNoise& cfg, double f) {
+  double a = 1.0;
+  if (f > cfg.corner_hz) a *= std::pow(f / cfg.corner_hz, cfg.slope_db_per_octave * kDbPerOctaveToExponent);
+  if (f > cfg.upper_hz) a *= std::pow(f / cfg.upper_hz, kUpperRolloffDbPerOctave * kDbPerOctaveToExponent);
+  return a;
+}
+
+}  // namespace
+
+Contribution breath_noise(const ProcessContext& ctx, const BreathNoise& cfg,
+                          const std::function<double(double time_s)>& resp_phase, double inspiration_fraction) {
+  Contribution c{"breath", true, SiteArray<float>(ctx.sites.size(), ctx.n_samples), {}};
+  const std::size_t n = ctx.n_samples;
+  auto amplitude = [&cfg](double f) { return breath_amplitude(cfg, f); };
+
+  // Amplitude envelope over the breath cycle: a sin^2 bump over inspiration, a quieter one over
+  // expiration; zero at the phase boundaries, so it is continuous across the cycle wrap.
+  const double fi = std::clamp(inspiration_fraction, 0.05, 0.95);
+  const double expiration_gain = std::pow(10.0, cfg.expiration_db / 20.0);
+  auto envelope_at = [&](std::size_t i) {
+    double p = resp_phase(static_cast<double>(i) / ctx.sample_rate_hz);
+    p -= std::floor(p);
+    if (p < fi) return std::pow(std::sin(M_PI * p / fi), 2);
+    return expiration_gain * std::pow(std::sin(M_PI * (p - fi) / (1 - fi)), 2);
+  };
+  std::vector<float> envelope(n);
+  for (std::size_t i0 = 0; i0 < n; i0 += kEnvelopeStep) {
+    double e0 = envelope_at(i0), e1 = envelope_at(std::min(i0 + kEnvelopeStep, n));
+    for (std::size_t k = 0; k < kEnvelopeStep && i0 + k < n; ++k)
+      envelope[i0 + k] = static_cast<float>(e0 + (e1 - e0) * static_cast<double>(k) / kEnvelopeStep);
+  }
+
+  RandomStream shared_rng = ctx.shared_stream(ProcessKind::breath);
+  std::vector<float> shared = shaped_gaussian(shared_rng, n, ctx.sample_rate_hz, amplitude);
+  const float w_shared = static_cast<float>(std::sqrt(cfg.site_coherence));
+  const float w_local = static_cast<float>(std::sqrt(1.0 - cfg.site_coherence));
+  for (std::size_t s = 0; s < ctx.sites.size(); ++s) {
+    RandomStream rng = ctx.site_stream(ProcessKind::breath, s);
+    const float g = static_cast<float>(std::pow(10.0, rng.uniform(-kBreathSiteSpreadDb, kBreathSiteSpreadDb) / 20.0));
+    std::vector<float> local = w_local > 0 ? shaped_gaussian(rng, n, ctx.sample_rate_hz, amplitude)
+                                           : std::vector<float>(n, 0.0f);
+    float* row = c.samples.row(s);
+    for (std::size_t i = 0; i < n; ++i) row[i] = g * envelope[i] * (w_shared * shared[i] + w_local * local[i]);
+  }
+  normalize_to_unit_power(c.samples);
+  return c;
+}
+
+}  // namespace stethogen::noise

@@ -1,0 +1,154 @@
+// add_noise: generates the profile's processes, sets their relative levels, scales the sum to
+// the record's SNR (definition in docs/noise.md), then applies clipping motion and dropouts.
+#include "noise/mix.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <limits>
+#include <stdexcept>
+
+#include "core/error.hpp"
+#include "noise/processes.hpp"
+#include "noise/profile.hpp"
+#include "noise/spectral.hpp"
+
+namespace stethogen::noise {
+
+namespace {
+
+double db_to_amplitude(double db) { return std::pow(10.0, db / 20.0); }
+
+struct Part {
+  Contribution contribution;
+  double amplitude = 1;  // relative level of the process, before the SNR scale
+};
+
+std::vector<Part> generate_additive(const ProcessContext& ctx, const NoiseProfile& p, const NoiseInputs& in,
+                                    const std::function<double(double)>& resp_phase) {
+  std::vector<Part> parts;
+  if (p.sensor_white.enabled) parts.push_back({sensor_noise(ctx), db_to_amplitude(p.sensor_white.level_db)});
+  if (p.ambient.enabled) parts.push_back({ambient_noise(ctx, p.ambient), db_to_amplitude(p.ambient.level_db)});
+  if (p.breath.enabled)
+    parts.push_back({breath_noise(ctx, p.breath, resp_phase, in.inspiration_fraction), db_to_amplitude(p.breath.level_db)});
+  if (p.friction.enabled) parts.push_back({friction_noise(ctx, p.friction), db_to_amplitude(p.friction.level_db)});
+  if (p.motion.enabled && !p.motion.clip)
+    parts.push_back({motion_noise(ctx, p.motion), db_to_amplitude(p.motion.level_db)});
+  if (p.hum.enabled) parts.push_back({hum_noise(ctx, p.hum), db_to_amplitude(p.hum.level_db)});
+  for (std::size_t i = 0; i < p.recordings.size(); ++i)
+    parts.push_back({recording_noise(ctx, p.recordings[i], i), db_to_amplitude(p.recordings[i].level_db)});
+  return parts;
+}
+
+// Artifact level: power over the event relative to the mean clean power at that site.
+double level_db(const float* x, const Burst& b, double scale, double clean_power) {
+  double power = mean_power(x + b.onset, b.offset - b.onset) * scale * scale;
+  return 10.0 * std::log10(power / clean_power);
+}
+
+}  // namespace
+
+NoiseOutput add_noise(const NoiseInputs& in) {
+  if (!in.subject || !in.clean) throw std::invalid_argument("add_noise: subject and clean signal are required");
+  const SubjectSpec& subject = *in.subject;
+  const SiteArray<float>& clean = *in.clean;
+  NoiseOutput out;
+  out.noisy = clean;
+  out.snr_target_db = std::numeric_limits<double>::quiet_NaN();
+  out.snr_achieved_db = std::numeric_limits<double>::quiet_NaN();
+  if (!subject.noise_profile || !subject.params.snr_db) return out;
+  if (clean.n_sites != subject.sites.size())
+    throw std::invalid_argument("add_noise: clean signal rows do not match the subject's sites");
+  const NoiseProfile& profile = *subject.noise_profile;
+  const double snr_db = *subject.params.snr_db;
+  out.snr_target_db = snr_db;
+  validate_for_rate(profile, in.sample_rate_hz, "noise." + subject.noise_profile_name);
+  if (clean.n_samples == 0 || clean.n_sites == 0) return out;
+
+  ProcessContext ctx{subject.dataset_seed, subject.record_index, static_cast<double>(in.sample_rate_hz),
+                     clean.n_samples, subject.sites};
+  const std::size_t n = clean.n_samples;
+  std::vector<double> site_clean_power(clean.n_sites);
+  for (std::size_t s = 0; s < clean.n_sites; ++s) site_clean_power[s] = mean_power(clean.row(s), n);
+  const double clean_power = mean_power(clean.data.data(), clean.data.size());
+  if (!(clean_power > 0) || !std::isfinite(clean_power))
+    throw RecordFailure(subject.record_id, "the clean signal is silent or non-finite: the SNR is undefined");
+  auto site_reference = [&](std::int32_t site) {
+    double p = site_clean_power[static_cast<std::size_t>(site)];
+    return p > 0 ? p : clean_power;
+  };
+
+  // Without a respiration model: a regular cycle at the subject's respiration rate.
+  const double breaths_per_s = subject.params.respiration_rate_per_min / 60.0;
+  std::function<double(double)> resp_phase =
+      in.resp_phase ? in.resp_phase : [breaths_per_s](double t) { return std::fmod(t * breaths_per_s, 1.0); };
+
+  // The additive background, summed at relative levels, then one scale for the SNR.
+  std::vector<Part> parts = generate_additive(ctx, profile, in, resp_phase);
+  SiteArray<float> total(clean.n_sites, n);
+  for (const Part& part : parts) {
+    const float a = static_cast<float>(part.amplitude);
+    const auto& x = part.contribution.samples.data;
+    for (std::size_t i = 0; i < x.size(); ++i) total.data[i] += a * x[i];
+  }
+  const double raw_power = mean_power(total.data.data(), total.data.size());
+  const double scale = raw_power > 0 ? std::sqrt(clean_power / (raw_power * std::pow(10.0, snr_db / 10.0))) : 0.0;
+  double noise_energy = 0;
+  for (std::size_t i = 0; i < total.data.size(); ++i) {
+    out.noisy.data[i] = clean.data[i] + static_cast<float>(scale * total.data[i]);
+    double e = static_cast<double>(out.noisy.data[i]) - clean.data[i];
+    noise_energy += e * e;
+  }
+  out.snr_achieved_db = noise_energy > 0 ? 10.0 * std::log10(clean_power * total.data.size() / noise_energy)
+                                         : std::numeric_limits<double>::infinity();
+
+  for (const Part& part : parts) {
+    const Contribution& c = part.contribution;
+    if (c.stationary) {
+      out.stationary.push_back(c.label);
+      continue;
+    }
+    for (const Burst& b : c.bursts)
+      out.artifacts.push_back({c.label, b.site, b.onset / ctx.sample_rate_hz, b.offset / ctx.sample_rate_hz,
+                               level_db(c.samples.row(b.site), b, scale * part.amplitude, site_reference(b.site))});
+  }
+
+  // Motion strong enough to clip: set in sensor full-scale units, outside the SNR budget.
+  if (profile.motion.enabled && profile.motion.clip) {
+    Contribution motion = motion_noise(ctx, profile.motion);
+    const float peak = static_cast<float>(profile.motion.peak_fs);
+    for (std::size_t i = 0; i < motion.samples.data.size(); ++i) out.noisy.data[i] += peak * motion.samples.data[i];
+    for (const Burst& b : motion.bursts)
+      out.artifacts.push_back({motion.label, b.site, b.onset / ctx.sample_rate_hz, b.offset / ctx.sample_rate_hz,
+                               level_db(motion.samples.row(b.site), b, profile.motion.peak_fs, site_reference(b.site))});
+  }
+
+  // Contact loss: the signal and every noise but the sensor's own fall to depth_db.
+  if (profile.dropout.enabled) {
+    std::vector<Burst> intervals = dropout_intervals(ctx, profile.dropout);
+    SiteArray<float> gain = dropout_gain(ctx, profile.dropout, intervals);
+    const Contribution* sensor = nullptr;
+    float sensor_scale = 0;
+    for (const Part& part : parts)
+      if (part.contribution.label == "sensor_white") {
+        sensor = &part.contribution;
+        sensor_scale = static_cast<float>(scale * part.amplitude);
+      }
+    for (std::size_t i = 0; i < gain.data.size(); ++i) {
+      if (gain.data[i] == 1.0f) continue;
+      float floor = sensor ? sensor_scale * sensor->samples.data[i] : 0.0f;
+      out.noisy.data[i] = gain.data[i] * (out.noisy.data[i] - floor) + floor;
+    }
+    for (const Burst& b : intervals)
+      out.artifacts.push_back({"dropout", b.site, b.onset / ctx.sample_rate_hz, b.offset / ctx.sample_rate_hz,
+                               profile.dropout.depth_db});
+  }
+
+  std::sort(out.artifacts.begin(), out.artifacts.end(), [](const Artifact& a, const Artifact& b) {
+    if (a.onset_s != b.onset_s) return a.onset_s < b.onset_s;
+    if (a.site != b.site) return a.site < b.site;
+    return a.kind < b.kind;
+  });
+  return out;
+}
+
+}  // namespace stethogen::noise

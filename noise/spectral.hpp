@@ -1,0 +1,29 @@
+// Gaussian noise generators: white, and coloured by spectral synthesis (a random Gaussian
+// spectrum shaped by the target amplitude response, inverse FFT with FFTW; Timmer & Koenig 1995,
+// "On generating power law noise", Astron Astrophys 300:707).
+#pragma once
+
+#include <cstddef>
+#include <functional>
+#include <vector>
+
+#include "core/random.hpp"
+
+namespace stethogen::noise {
+
+// n standard normal values (Box & Muller 1958, both outputs of each pair used; 32-bit uniforms).
+void fill_gaussian(RandomStream& rng, float* out, std::size_t n);
+
+// n samples of stationary Gaussian noise at sample_rate_hz whose amplitude spectrum follows
+// amplitude(frequency_hz) (|H(f)|; power spectrum |H|^2), scaled to unit mean power. The
+// synthesis is circular: the signal wraps without a seam. DC is zero.
+std::vector<float> shaped_gaussian(RandomStream& rng, std::size_t n, double sample_rate_hz,
+                                   const std::function<double(double frequency_hz)>& amplitude);
+
+// Mean of x^2.
+double mean_power(const float* x, std::size_t n);
+
+// Scales x so its mean power is target_power (no-op for an all-zero x).
+void scale_to_power(std::vector<float>& x, double target_power);
+
+}  // namespace stethogen::noise
