@@ -18,6 +18,7 @@ int run(int argc, const char* const* argv) {
 
   // A verb is listed here once it does real work.
   std::vector<Command> commands = {
+      add_check(root),
       // verbs are appended here as they land
   };
 

@@ -121,15 +121,18 @@ struct Registry {
   std::map<std::string, std::string> owner;  // name -> where it was defined
   std::uint64_t records = 0;
 
-  void add(const toml::node& at, const std::string& name, const std::string& path,
-           const std::string& where, std::uint64_t count) {
-    auto [it, fresh] = owner.emplace(name, where);
+  // name_node/what: where the name comes from and how to say so; count_node: its count.
+  void add(const std::string& name, const toml::node& name_node, const std::string& what,
+           const std::string& owner_path, const toml::node& count_node, const std::string& count_path,
+           std::uint64_t count) {
+    auto [it, fresh] = owner.emplace(name, owner_path);
     if (!fresh)
-      f.fail(at, fmt::format("{} = \"{}\": population name already used by {}", path, name,
-                             it->second));
+      f.fail(name_node, fmt::format("{}: name already used by {}", what, it->second));
     records += count;
     if (records > kMaxRecords)
-      f.fail(at, fmt::format("{}: the recipe plans more than {} records", path, kMaxRecords));
+      f.fail(count_node, fmt::format("{} = {}: brings the recipe to {} records, more than the {} "
+                                     "allowed in one dataset",
+                                     count_path, count, records, kMaxRecords));
   }
 };
 
@@ -185,7 +188,7 @@ std::vector<Axis> read_grid(const Fields& f, const toml::table& t, const std::st
 }
 
 // The cartesian product of the axes, first axis outermost; names <sweep>_<tag><value>...
-void expand(const PopulationSpec& base, const std::vector<Axis>& axes, const toml::node& at,
+void expand(const PopulationSpec& base, const std::vector<Axis>& axes, const toml::table& sweep,
             const std::string& path, Registry& names, std::vector<PopulationSpec>& out) {
   std::vector<std::size_t> pos(axes.size(), 0);
   while (true) {
@@ -201,7 +204,8 @@ void expand(const PopulationSpec& base, const std::vector<Axis>& axes, const tom
         p.name += "_" + a.profiles[pos[k]];
       }
     }
-    names.add(at, p.name, path + " generated name", path, p.count);
+    names.add(p.name, *sweep.get("name"), fmt::format("{} generates population \"{}\"", path, p.name),
+              path, *sweep.get("count"), path + ".count", p.count);
     out.push_back(std::move(p));
     std::size_t k = axes.size();
     while (k > 0 && ++pos[k - 1] == axes[k - 1].size()) pos[--k] = 0;
@@ -227,7 +231,8 @@ std::vector<PopulationSpec> parse_populations(const Fields& f, const toml::table
       p.name = f.identifier(*name, path + ".name");
       read_body(f, t, path, p, profiles);
       check_state_keys(f, t, path, p.state, nullptr);
-      names.add(*name, p.name, path + ".name", path, p.count);
+      names.add(p.name, *name, fmt::format("{}.name = \"{}\"", path, p.name), path, *t.get("count"),
+                path + ".count", p.count);
       out.push_back(std::move(p));
     }
   }
@@ -244,7 +249,7 @@ std::vector<PopulationSpec> parse_populations(const Fields& f, const toml::table
       read_body(f, t, path, base, profiles);
       std::vector<Axis> axes = read_grid(f, t, path, profiles);
       check_state_keys(f, t, path, base.state, t.get("grid")->as_table());
-      expand(base, axes, *name, path, names, out);
+      expand(base, axes, t, path, names, out);
     }
   }
   if (out.empty())

@@ -16,6 +16,16 @@ std::string join(const std::vector<std::string>& names) {
   return out;
 }
 
+// did_you_mean, plus the common slip of leaving off a unit suffix ("snr" for "snr_db").
+std::string suggestion(const std::string& word, const std::vector<std::string>& allowed) {
+  std::string hint = did_you_mean(word, allowed);
+  if (!hint.empty()) return hint;
+  for (const std::string& a : allowed)
+    if (a.size() > word.size() + 1 && a.compare(0, word.size(), word) == 0 && a[word.size()] == '_')
+      return fmt::format(" (did you mean '{}'?)", a);
+  return {};
+}
+
 }  // namespace
 
 std::string describe(const toml::node& node) {
@@ -49,7 +59,7 @@ void Fields::reject_unknown_keys(const toml::table& table, const std::string& pa
     for (const std::string& a : allowed) known = known || a == k;
     if (known) continue;
     std::string full = path.empty() ? k : path + "." + k;
-    std::string hint = did_you_mean(k, allowed);
+    std::string hint = suggestion(k, allowed);
     if (hint.empty()) hint = "; allowed: " + join(allowed);
     fail(key.source(), fmt::format("{}: unknown key{}", full, hint));
   }
@@ -94,14 +104,9 @@ std::int64_t Fields::integer(const toml::node& node, const std::string& path, st
 }
 
 double Fields::number(const toml::node& node, const std::string& path, double lo, double hi) const {
-  double v = 0;
-  if (auto i = node.as_integer()) {
-    v = static_cast<double>(i->get());
-  } else if (auto f = node.as_floating_point()) {
-    v = f->get();
-  } else {
+  if (!node.is_number())
     fail(node, fmt::format("{} = {}: must be a number within [{}, {}]", path, describe(node), lo, hi));
-  }
+  double v = node.value<double>().value();
   located(node, [&] { check_in_range(path, v, lo, hi); });
   return v;
 }
@@ -115,7 +120,10 @@ std::vector<double> Fields::weights(const toml::node& node, const std::string& p
   double sum = 0;
   for (std::size_t i = 0; i < arr.size(); ++i) {
     std::string p = fmt::format("{}[{}]", path, i);
-    w.push_back(number(arr[i], p, 0, 1e12));
+    if (!arr[i].is_number())
+      fail(arr[i], fmt::format("{} = {}: must be a number >= 0", p, describe(arr[i])));
+    w.push_back(arr[i].value<double>().value());
+    located(arr[i], [&] { check_non_negative(p, w.back()); });
     sum += w.back();
   }
   if (!(sum > 0)) fail(node, fmt::format("{}: weights sum to 0: at least one must be > 0", path));
