@@ -1,0 +1,90 @@
+// Spectral shape of the noise processes, measured by scipy.signal.welch on the generated noise.
+#include <catch2/catch.hpp>
+
+#include <fmt/format.h>
+
+#include "noise_helpers.hpp"
+
+using namespace stethogen;
+using namespace noise_test;
+
+namespace {
+
+constexpr double kSlopeToleranceDbPerOctave = 1.0;  // the acceptance band
+
+std::map<std::string, double> measure(const noise::NoiseProfile& profile, const std::string& check,
+                                      const std::string& args, double duration_s = 60,
+                                      std::function<double(double)> phase = {}) {
+  Case c = make_case(profile, -20, duration_s);
+  auto out = c.run(std::move(phase));
+  TempDir dir;
+  write_f32(dir.file("noise.f32"), noise_at(out, c.clean, 0));
+  return reference(check + " " + dir.file("noise.f32") + " " + std::to_string(c.rate_hz) + " " + args);
+}
+
+noise::NoiseProfile ambient(noise::NoiseColor color) {
+  noise::NoiseProfile p;
+  p.ambient.enabled = true;
+  p.ambient.color = color;
+  return p;
+}
+
+}  // namespace
+
+TEST_CASE("white, pink and brown noise have the slopes of their definitions") {
+  noise::NoiseProfile white;
+  white.sensor_white.enabled = true;
+  // Definitions (common practice): white = flat, pink = power 1/f = -3.01 dB/octave,
+  // brown = power 1/f^2 = -6.02 dB/octave; measured with scipy.signal.welch.
+  CHECK(measure(white, "slope", "20 1900")["slope_db_per_octave"] == Approx(0).margin(kSlopeToleranceDbPerOctave));
+  CHECK(measure(ambient(noise::NoiseColor::white), "slope", "20 1900")["slope_db_per_octave"] ==
+        Approx(0).margin(kSlopeToleranceDbPerOctave));
+  CHECK(measure(ambient(noise::NoiseColor::pink), "slope", "20 1900")["slope_db_per_octave"] ==
+        Approx(-3.01).margin(kSlopeToleranceDbPerOctave));
+  CHECK(measure(ambient(noise::NoiseColor::brown), "slope", "20 1900")["slope_db_per_octave"] ==
+        Approx(-6.02).margin(kSlopeToleranceDbPerOctave));
+}
+
+TEST_CASE("band-limited room noise stays inside its band") {
+  auto p = ambient(noise::NoiseColor::band);
+  p.ambient.band_hz = {150, 450};
+  // scipy.signal.welch: power outside the band at least 40 dB below the in-band density.
+  CHECK(measure(p, "band", "150 450")["outside_vs_inside_db"] < -40);
+}
+
+TEST_CASE("breath sounds follow Gavriely et al. 1995: corner, slope, upper limit, inspiration louder") {
+  noise::NoiseProfile p;
+  p.breath.enabled = true;
+  const double period_s = 4.0, insp_fraction = 0.4;
+  auto phase = [&](double t) { return std::fmod(t / period_s, 1.0); };
+  auto m = measure(p, "breath",
+                   fmt::format("{} {} {} {}", period_s, insp_fraction, p.breath.corner_hz, p.breath.upper_hz), 120,
+                   phase);
+  // Gavriely, Nissan, Rubin & Cugell 1995 (Thorax 50:1292): inspiratory power falls -13 to
+  // -15 dB/octave above the corner; measured with scipy.signal.welch.
+  CHECK(m["insp_slope_db_per_octave"] <= -13.0);
+  CHECK(m["insp_slope_db_per_octave"] >= -15.0);
+  // Same source: upper frequency limit near 700-1000 Hz (here the -30 dB point of the
+  // inspiratory spectrum relative to its low-frequency plateau: our operational reading).
+  CHECK(m["upper_limit_30db_hz"] >= 700);
+  CHECK(m["upper_limit_30db_hz"] <= 1000);
+  // Same source: inspiration louder than expiration.
+  CHECK(m["insp_vs_exp_db"] > 3);
+}
+
+TEST_CASE("powerline hum peaks at the mains frequency and its harmonics") {
+  for (double mains_hz : {50.0, 60.0}) {
+    noise::NoiseProfile p;
+    p.hum.enabled = true;
+    p.hum.frequency_hz = mains_hz;
+    p.hum.harmonics = 3;
+    auto m = measure(p, "peaks", fmt::format("{} {}", mains_hz, p.hum.harmonics + 1), 60);
+    for (int k = 1; k <= p.hum.harmonics + 1; ++k) {
+      INFO("mains " << mains_hz << " Hz, harmonic " << k);
+      // Mains frequency 50 or 60 Hz and integer harmonics (common practice); peak located by
+      // scipy.signal.welch at 0.0625 Hz resolution, within the 0.5 Hz.
+      CHECK(m[fmt::format("peak_{}_hz", k)] == Approx(k * mains_hz).margin(0.5));
+      CHECK(m[fmt::format("peak_{}_vs_between_db", k)] > 30);
+    }
+  }
+}
