@@ -79,13 +79,16 @@ class BundleReader {
   // the description of a dataset; std::nullopt if the path is not a dataset.
   std::vector<std::string> list_group(const std::string& path) const;
   std::optional<DatasetInfo> dataset_info(const std::string& path) const;
+  // Attribute names of a group or dataset ("/" for the root); empty if the path is absent.
+  std::vector<std::string> attribute_names(const std::string& path) const;
   // Reads every dataset of a record in full, so checksum and decompression errors surface;
   // throws RuntimeFailure naming the record and dataset of the first damaged one.
   void check_record_data(const std::string& record_id) const;
 
+ struct Impl;  // adapter-internal (bundle/reader_impl.hpp)
+
  private:
   friend class BundleWriter;
-  struct Impl;
   std::unique_ptr<Impl> impl_;
 };
 

@@ -1,0 +1,99 @@
+// Adapter-internal HDF5 helpers (C API): owning handles, errors that carry HDF5's own reason,
+// attributes, chunked and filtered arrays, packed compound tables. Included only by bundle/*.cpp
+// of the adapter; nothing outside the adapter sees an HDF5 type.
+#pragma once
+
+#include <hdf5.h>
+
+#include <cstdint>
+#include <mutex>
+#include <string>
+#include <vector>
+
+#include "bundle/table.hpp"
+
+namespace stethogen::bundle::h5 {
+
+// All HDF5 calls of the adapter run under this lock (one reader or writer at a time).
+std::recursive_mutex& lock();
+// Once per process: silence HDF5's automatic error printing (we report errors ourselves).
+void init();
+
+// An owning hid_t, closed with the matching H5*close.
+class Id {
+ public:
+  Id() = default;
+  explicit Id(hid_t id) : id_(id) {}
+  Id(Id&& o) noexcept : id_(o.id_) { o.id_ = -1; }
+  Id& operator=(Id&& o) noexcept {
+    if (this != &o) {
+      reset();
+      id_ = o.id_;
+      o.id_ = -1;
+    }
+    return *this;
+  }
+  Id(const Id&) = delete;
+  Id& operator=(const Id&) = delete;
+  ~Id() { reset(); }
+  hid_t get() const { return id_; }
+  operator hid_t() const { return id_; }
+  bool valid() const { return id_ >= 0; }
+  // Closes now; returns false if HDF5 reported an error (e.g. a failed flush on file close).
+  bool reset() noexcept;
+
+ private:
+  hid_t id_ = -1;
+};
+
+// The innermost reason on HDF5's error stack (e.g. "No space left on device"), then clears it.
+std::string error_reason();
+// Throws RuntimeFailure "what: reason" when id < 0 / status < 0.
+hid_t check(hid_t id, const std::string& what);
+void check_status(herr_t status, const std::string& what);
+
+// Creation property lists with object timestamps off, so files are reproducible.
+Id group_plist();
+Id make_group(hid_t parent, const std::string& name);
+Id open_group(hid_t parent, const std::string& name, const std::string& what);
+bool exists(hid_t parent, const std::string& path);
+
+// Attributes (scalars and 1-D arrays). Strings are variable-length UTF-8.
+void set_attr(hid_t obj, const std::string& name, const std::string& value);
+void set_attr(hid_t obj, const std::string& name, const char* value);
+void set_attr(hid_t obj, const std::string& name, const std::vector<std::string>& values);
+void set_attr_i32(hid_t obj, const std::string& name, std::int32_t value);
+void set_attr_i64(hid_t obj, const std::string& name, std::int64_t value);
+void set_attr_u64(hid_t obj, const std::string& name, std::uint64_t value);
+void set_attr_f64(hid_t obj, const std::string& name, double value);
+void set_attr_i32s(hid_t obj, const std::string& name, const std::vector<std::int32_t>& values);
+
+bool has_attr(hid_t obj, const std::string& name);
+std::string attr_string(hid_t obj, const std::string& name);
+std::vector<std::string> attr_strings(hid_t obj, const std::string& name);
+std::int64_t attr_int(hid_t obj, const std::string& name);
+std::uint64_t attr_u64(hid_t obj, const std::string& name);
+double attr_f64(hid_t obj, const std::string& name);
+std::vector<std::int64_t> attr_ints(hid_t obj, const std::string& name);
+std::vector<std::string> attr_names(hid_t obj);
+
+// A [rows, cols] array (rows = 1 for 1-D when one_d), chunked [1, min(chunk_cols, cols)] with
+// shuffle (optional), gzip and Fletcher32. file_type is the stored type, mem_type the buffer's.
+struct ArraySpec {
+  std::size_t rows = 0, cols = 0;
+  bool one_d = false;
+  std::size_t chunk_cols = 16384;
+  int gzip_level = 4;
+  bool shuffle = true;
+};
+Id write_array(hid_t parent, const std::string& name, const void* data, hid_t mem_type, hid_t file_type,
+               const ArraySpec& spec);
+std::vector<std::uint64_t> shape(hid_t dataset);
+// Reads a whole dataset converted to mem_type; out must hold the element count.
+void read_all(hid_t dataset, hid_t mem_type, void* out, const std::string& what);
+
+// Packed compound tables, one member per column. Chunked (gzip, shuffle, Fletcher32) unless empty.
+Id write_table(hid_t parent, const std::string& name, const Table& table, int gzip_level);
+Table read_table(hid_t dataset, const std::string& what);
+
+}  // namespace stethogen::bundle::h5

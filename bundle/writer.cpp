@@ -1,0 +1,305 @@
+#include "bundle/writer.hpp"
+
+#include <fcntl.h>
+#include <unistd.h>
+
+#include <algorithm>
+#include <chrono>
+#include <cmath>
+#include <cstdlib>
+#include <ctime>
+#include <set>
+
+#include <fmt/format.h>
+
+#include "bundle/hdf5_io.hpp"
+#include "bundle/reader_impl.hpp"
+#include "bundle/schema.hpp"
+#include "core/error.hpp"
+
+namespace stethogen::bundle {
+
+namespace fs = std::filesystem;
+
+namespace {
+
+// ISO 8601 UTC; SOURCE_DATE_EPOCH (seconds) pins it for reproducible files.
+std::string now_utc() {
+  std::time_t t = std::time(nullptr);
+  if (const char* epoch = std::getenv("SOURCE_DATE_EPOCH"); epoch && *epoch) t = std::strtoll(epoch, nullptr, 10);
+  std::tm tm{};
+  gmtime_r(&t, &tm);
+  char buf[32];
+  std::strftime(buf, sizeof buf, "%Y-%m-%dT%H:%M:%SZ", &tm);
+  return buf;
+}
+
+std::vector<std::string> site_names(const std::vector<Site>& sites) {
+  std::vector<std::string> out;
+  for (Site s : sites) out.emplace_back(name(s));
+  return out;
+}
+
+std::int32_t full_scale(SampleFormat f) {
+  return f == SampleFormat::int16 ? kInt16FullScale : kInt24FullScale;
+}
+
+void fsync_file(const fs::path& path) {
+  int fd = ::open(path.c_str(), O_RDONLY);
+  if (fd < 0) return;
+  int rc = ::fsync(fd);
+  ::close(fd);
+  if (rc != 0) throw RuntimeFailure(fmt::format("{}: cannot flush to disk", path.string()));
+}
+
+}  // namespace
+
+struct BundleWriter::Impl {
+  fs::path target, temp;
+  BundleAttributes attributes;
+  WriterOptions options;
+  h5::Id file, records;
+  std::vector<IndexRow> index;
+  std::vector<SkippedRecord> skipped;
+  std::set<std::string> ids;
+  bool open = false;
+
+  std::string where(const std::string& object) const { return fmt::format("{}: {}", temp.string(), object); }
+
+  void write_pcg(hid_t group, const std::string& name, const SiteArray<float>& pcg, const Record& r) {
+    h5::ArraySpec spec;
+    spec.rows = pcg.n_sites;
+    spec.cols = pcg.n_samples;
+    spec.chunk_cols = kPcgChunkSamples;
+    spec.gzip_level = kGzipLevel;
+    SampleFormat fmt_ = attributes.sample_format;
+    h5::Id ds;
+    double scale = 1.0;
+    if (fmt_ == SampleFormat::float32) {
+      ds = h5::write_array(group, name, pcg.data.data(), H5T_NATIVE_FLOAT, H5T_IEEE_F32LE, spec);
+    } else {
+      const std::int32_t full = full_scale(fmt_);
+      scale = 1.0 / full;
+      std::vector<std::int32_t> q(pcg.data.size());
+      for (std::size_t i = 0; i < q.size(); ++i) {
+        double v = std::isfinite(pcg.data[i]) ? std::round(double(pcg.data[i]) * full) : 0.0;
+        q[i] = static_cast<std::int32_t>(std::clamp(v, -double(full), double(full)));
+      }
+      hid_t file_type = fmt_ == SampleFormat::int16 ? H5T_STD_I16LE : H5T_STD_I32LE;
+      ds = h5::write_array(group, name, q.data(), H5T_NATIVE_INT32, file_type, spec);
+      h5::set_attr_i32s(ds, "valid_range", {-full, full});
+    }
+    h5::set_attr_i32(ds, "sample_rate_hz", r.sample_rate_hz);
+    h5::set_attr(ds, "sites", site_names(r.sites));
+    h5::set_attr(ds, "unit", "full_scale");
+    h5::set_attr(ds, "sample_format", std::string(stethogen::name(fmt_)));
+    h5::set_attr_f64(ds, "scale", scale);
+  }
+
+  void write_hemodynamics(hid_t group, const HemodynamicTraces& h) {
+    h5::Id g = h5::make_group(group, "hemodynamics");
+    h5::set_attr_f64(g, "sample_rate_hz", h.sample_rate_hz);
+    h5::set_attr(g, "channels", h.names);
+    for (std::size_t c = 0; c < h.names.size() && c < h.data.n_sites; ++c) {
+      h5::ArraySpec spec;
+      spec.rows = 1;
+      spec.cols = h.data.n_samples;
+      spec.one_d = true;
+      spec.chunk_cols = kPcgChunkSamples;
+      spec.gzip_level = kGzipLevel;
+      h5::Id ds = h5::write_array(g, h.names[c], h.data.row(c), H5T_NATIVE_FLOAT, H5T_IEEE_F32LE, spec);
+      h5::set_attr(ds, "unit", c < h.units.size() ? h.units[c] : std::string{});
+      h5::set_attr_f64(ds, "sample_rate_hz", h.sample_rate_hz);
+    }
+  }
+
+  void write(const Record& r, const RecordParts& parts, const std::string& id) {
+    const SubjectSpec& s = r.subject;
+    h5::Id g = h5::make_group(records, id);
+    h5::set_attr_u64(g, "record_index", s.record_index);
+    h5::set_attr(g, "population", s.population);
+    h5::set_attr(g, "state", std::string(name(s.state)));
+    h5::set_attr_f64(g, "exercise_intensity", s.exercise_intensity);
+    h5::set_attr_f64(g, "severity", s.severity);
+    h5::set_attr(g, "sensor", std::string(name(s.sensor)));
+    h5::set_attr_i32(g, "sample_rate_hz", r.sample_rate_hz);
+    h5::set_attr(g, "sites", site_names(r.sites));
+    h5::set_attr_f64(g, "duration_s", r.sample_rate_hz > 0 ? double(r.pcg.n_samples) / r.sample_rate_hz : 0.0);
+    h5::set_attr_f64(g, "snr_db", r.summary.snr_target_db);
+    h5::set_attr_f64(g, "snr_achieved_db", r.summary.snr_achieved_db);
+    h5::set_attr(g, "noise_profile", s.noise_profile_name);
+    h5::set_attr(g, "stationary_noise", r.summary.stationary_noise);
+
+    write_pcg(g, "pcg", r.pcg, r);
+    if (parts.pcg_clean && !r.pcg_clean.data.empty()) write_pcg(g, "pcg_clean", r.pcg_clean, r);
+    if (parts.states && !r.states.data.empty()) {
+      h5::ArraySpec spec;
+      spec.rows = r.states.n_sites;
+      spec.cols = r.states.n_samples;
+      spec.chunk_cols = kPcgChunkSamples;
+      spec.gzip_level = kGzipLevel;
+      spec.shuffle = false;  // one-byte elements: shuffling does nothing
+      h5::Id ds = h5::write_array(g, "states", r.states.data.data(), H5T_NATIVE_UINT8, H5T_STD_U8LE, spec);
+      h5::set_attr(ds, "labels", label_names());
+      h5::set_attr_i32(ds, "sample_rate_hz", r.sample_rate_hz);
+      h5::set_attr(ds, "sites", site_names(r.sites));
+    }
+    if (parts.events) h5::write_table(g, "events", events_table(r.events), kGzipLevel);
+    if (parts.beats) h5::write_table(g, "beats", beats_table(r.beats), kGzipLevel);
+    if (parts.artifacts) {
+      h5::Id ds = h5::write_table(g, "artifacts", artifacts_table(r.artifacts, r.sample_rate_hz), kGzipLevel);
+      h5::set_attr_i32(ds, "sample_rate_hz", r.sample_rate_hz);
+    }
+    if (parts.hemodynamics && !r.hemodynamics.names.empty()) write_hemodynamics(g, r.hemodynamics);
+  }
+
+  void close_and_remove() noexcept {
+    records.reset();
+    file.reset();
+    std::error_code ec;
+    fs::remove(temp, ec);
+    open = false;
+  }
+};
+
+BundleWriter::BundleWriter(const fs::path& target, const BundleAttributes& attributes, const WriterOptions& options)
+    : impl_(std::make_unique<Impl>()) {
+  std::lock_guard guard(h5::lock());
+  h5::init();
+  Impl& m = *impl_;
+  m.target = target;
+  m.temp = options.temp_path.empty() ? fs::path(target.string() + ".partial") : options.temp_path;
+  m.attributes = attributes;
+  m.options = options;
+  if (fs::exists(target) && !options.overwrite)
+    throw InputError(fmt::format("{}: output exists; pass --force to replace it", target.string()));
+  if (m.attributes.created_utc.empty()) m.attributes.created_utc = now_utc();
+
+  h5::Id fcpl(h5::check(H5Pcreate(H5P_FILE_CREATE), "file properties"));
+  h5::check_status(H5Pset_obj_track_times(fcpl, false), "file properties");
+  m.file = h5::Id(H5Fcreate(m.temp.c_str(), H5F_ACC_TRUNC, fcpl, H5P_DEFAULT));
+  if (!m.file.valid())
+    throw RuntimeFailure(fmt::format("{}: cannot create: {}", m.temp.string(), h5::error_reason()));
+  m.open = true;
+  try {
+    const BundleAttributes& a = m.attributes;
+    hid_t root = m.file;
+    h5::set_attr(root, "format", kBundleFormatName);
+    h5::set_attr_i32s(root, "format_version", {kBundleFormatMajor, kBundleFormatMinor});
+    h5::set_attr(root, "generator_version", a.generator_version);
+    h5::set_attr(root, "recipe_toml", a.recipe_toml);
+    h5::set_attr(root, "recipe_sha256", a.recipe_sha256);
+    h5::set_attr_u64(root, "seed", a.seed);
+    h5::set_attr_u64(root, "record_count", a.record_count);
+    h5::set_attr(root, "sample_format", std::string(name(a.sample_format)));
+    h5::set_attr(root, "content", a.content);
+    if (a.shard_count > 0) h5::set_attr_i32s(root, "shard", {a.shard_index, a.shard_count});
+    for (const auto& [key, value] : a.extra) h5::set_attr(root, key, value);
+    h5::set_attr(root, "created_utc", a.created_utc);
+    m.records = h5::make_group(root, "records");
+  } catch (const RuntimeFailure& e) {
+    m.close_and_remove();
+    throw RuntimeFailure(fmt::format("{}: {}", m.temp.string(), e.what()));
+  }
+}
+
+BundleWriter::~BundleWriter() { abandon(); }
+
+void BundleWriter::write_record(const Record& record, const RecordParts& parts, const std::string& override_id) {
+  std::lock_guard guard(h5::lock());
+  Impl& m = *impl_;
+  const std::string id = override_id.empty() ? record.subject.record_id : override_id;
+  if (!m.open) throw std::logic_error("BundleWriter: write after finish/abandon");
+  if (id.empty() || id.find('/') != std::string::npos || id == "." )
+    throw InputError(fmt::format("record id '{}': must be non-empty and contain no '/'", id));
+  if (!m.ids.insert(id).second) throw InputError(fmt::format("{}: duplicate record id '{}'", m.target.string(), id));
+  try {
+    m.write(record, parts, id);
+  } catch (const RuntimeFailure& e) {
+    throw RuntimeFailure(fmt::format("{}: record {}: {}", m.temp.string(), id, e.what()));
+  }
+  IndexRow row = index_row(record);
+  row.record_id = id;
+  m.index.push_back(std::move(row));
+}
+
+void BundleWriter::copy_record(const BundleReader& source, const std::string& record_id) {
+  std::lock_guard guard(h5::lock());
+  Impl& m = *impl_;
+  if (!m.open) throw std::logic_error("BundleWriter: write after finish/abandon");
+  const IndexRow* row = source.impl_->row(record_id);
+  if (!row) throw InputError(fmt::format("{}: no record '{}'", source.path().string(), record_id));
+  if (!m.ids.insert(record_id).second)
+    throw InputError(fmt::format("{}: duplicate record id '{}'", source.path().string(), record_id));
+  const std::string from = "/records/" + record_id;
+  if (H5Ocopy(source.impl_->file, from.c_str(), m.records, record_id.c_str(), H5P_DEFAULT, H5P_DEFAULT) < 0)
+    throw RuntimeFailure(fmt::format("{}: copying {} from {}: {}", m.temp.string(), from,
+                                     source.path().string(), h5::error_reason()));
+  m.index.push_back(*row);
+}
+
+void BundleWriter::add_skipped(const SkippedRecord& skipped) { impl_->skipped.push_back(skipped); }
+
+void BundleWriter::write_string_table(const std::string& path, const StringTable& table) {
+  std::lock_guard guard(h5::lock());
+  Impl& m = *impl_;
+  if (path.empty() || path[0] != '/' || path.rfind("/records", 0) == 0 || path == "/index" || path == "/skipped")
+    throw std::invalid_argument("write_string_table: path must be absolute and outside /records, /index, /skipped");
+  // Create the parent groups.
+  std::size_t last = path.rfind('/');
+  hid_t parent = m.file;
+  h5::Id group;
+  std::size_t pos = 1;
+  while (pos < last) {
+    std::size_t next = path.find('/', pos);
+    std::string prefix = path.substr(0, next);
+    group = h5::exists(m.file, prefix) ? h5::open_group(m.file, prefix, m.where(prefix)) : h5::make_group(m.file, prefix);
+    pos = next + 1;
+  }
+  if (group.valid()) parent = group;
+  try {
+    h5::write_table(parent, path.substr(last + 1), string_table(table), kGzipLevel);
+  } catch (const RuntimeFailure& e) {
+    throw RuntimeFailure(m.where(path) + ": " + e.what());
+  }
+}
+
+void BundleWriter::finish() {
+  std::lock_guard guard(h5::lock());
+  Impl& m = *impl_;
+  if (!m.open) throw std::logic_error("BundleWriter: finish after finish/abandon");
+  try {
+    h5::write_table(m.file, "index", index_table(m.index), kGzipLevel);
+    h5::write_table(m.file, "skipped", skipped_table(m.skipped), kGzipLevel);
+    m.records.reset();
+    h5::check_status(H5Fflush(m.file, H5F_SCOPE_GLOBAL), "flush");
+    if (!m.file.reset()) throw RuntimeFailure("close: " + h5::error_reason());
+    m.open = false;
+    fsync_file(m.temp);
+  } catch (const RuntimeFailure& e) {
+    m.close_and_remove();
+    throw RuntimeFailure(fmt::format("{}: {} (nothing written to {})", m.temp.string(), e.what(), m.target.string()));
+  }
+  if (fs::exists(m.target) && !m.options.overwrite) {
+    m.close_and_remove();
+    throw InputError(fmt::format("{}: output appeared while writing; pass --force to replace it", m.target.string()));
+  }
+  std::error_code ec;
+  fs::rename(m.temp, m.target, ec);
+  if (ec) {
+    m.close_and_remove();
+    throw RuntimeFailure(fmt::format("{}: cannot rename to {}: {}", m.temp.string(), m.target.string(), ec.message()));
+  }
+}
+
+void BundleWriter::abandon() noexcept {
+  if (!impl_ || !impl_->open) return;
+  std::lock_guard guard(h5::lock());
+  impl_->close_and_remove();
+}
+
+std::size_t BundleWriter::records_written() const { return impl_->index.size(); }
+const fs::path& BundleWriter::target() const { return impl_->target; }
+const fs::path& BundleWriter::temp_path() const { return impl_->temp; }
+
+}  // namespace stethogen::bundle
