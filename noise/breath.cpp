@@ -53,18 +53,8 @@ Contribution breath_noise(const ProcessContext& ctx, const BreathNoise& cfg,
       envelope[i0 + k] = static_cast<float>(e0 + (e1 - e0) * static_cast<double>(k) / kEnvelopeStep);
   }
 
-  RandomStream shared_rng = ctx.shared_stream(ProcessKind::breath);
-  std::vector<float> shared = shaped_gaussian(shared_rng, n, ctx.sample_rate_hz, amplitude);
-  const float w_shared = static_cast<float>(std::sqrt(cfg.site_coherence));
-  const float w_local = static_cast<float>(std::sqrt(1.0 - cfg.site_coherence));
-  for (std::size_t s = 0; s < ctx.sites.size(); ++s) {
-    RandomStream rng = ctx.site_stream(ProcessKind::breath, s);
-    const float g = static_cast<float>(std::pow(10.0, rng.uniform(-kBreathSiteSpreadDb, kBreathSiteSpreadDb) / 20.0));
-    std::vector<float> local = w_local > 0 ? shaped_gaussian(rng, n, ctx.sample_rate_hz, amplitude)
-                                           : std::vector<float>(n, 0.0f);
-    float* row = c.samples.row(s);
-    for (std::size_t i = 0; i < n; ++i) row[i] = g * envelope[i] * (w_shared * shared[i] + w_local * local[i]);
-  }
+  spread_over_sites(ctx, ProcessKind::breath, cfg.site_coherence, kBreathSiteSpreadDb, amplitude, envelope.data(),
+                    c.samples);
   normalize_to_unit_power(c.samples);
   return c;
 }

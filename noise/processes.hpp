@@ -15,8 +15,8 @@
 namespace stethogen::noise {
 
 // Fixed per process kind: stream id = noise_base + 16 * kind + sub, where sub 0 is the shared
-// (all-site) stream and 1 + Site the stream of one site. Adding a process or a site leaves
-// every other stream untouched.
+// (all-site) stream, 1 + Site the stream of one site and 15 the local-field stream (see
+// spread_over_sites). Adding a process or a site leaves every other stream untouched.
 enum class ProcessKind : std::uint32_t {
   sensor_white = 0, ambient = 1, breath = 2, friction = 3, motion = 4, hum = 5, dropout = 6,
   recording_first = 7,  // recording i uses 7 + i
@@ -31,6 +31,7 @@ struct ProcessContext {
 
   RandomStream shared_stream(ProcessKind kind, std::uint32_t kind_offset = 0) const;
   RandomStream site_stream(ProcessKind kind, std::size_t site_index, std::uint32_t kind_offset = 0) const;
+  RandomStream local_stream(ProcessKind kind) const;
   double duration_s() const { return n_samples / sample_rate_hz; }
 };
 
@@ -51,6 +52,15 @@ struct Contribution {
 
 // Scales x so its mean power over all sites and samples is 1 (no-op when all zero).
 void normalize_to_unit_power(SiteArray<float>& x);
+
+// A field heard at every site: row s = g_s * envelope * (sqrt(c) * shared + sqrt(1 - c) * local_s)
+// with c the coherence (shared power fraction) and g_s a per-site level within +-spread_db. The
+// local parts are one further synthesis, circularly shifted by (1 + Site) / 5 of the record:
+// for noise whose correlation time is far below a second, practically independent per site
+// at the cost of one synthesis instead of one per site. envelope may be null (flat).
+void spread_over_sites(const ProcessContext& ctx, ProcessKind kind, double coherence, double spread_db,
+                       const std::function<double(double)>& amplitude, const float* envelope,
+                       SiteArray<float>& out);
 
 Contribution sensor_noise(const ProcessContext& ctx);
 Contribution ambient_noise(const ProcessContext& ctx, const AmbientNoise& cfg);

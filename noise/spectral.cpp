@@ -1,6 +1,7 @@
 #include "noise/spectral.hpp"
 
 #include <cmath>
+#include <map>
 #include <memory>
 #include <mutex>
 
@@ -10,10 +11,21 @@ namespace stethogen::noise {
 
 namespace {
 
-// FFTW's planner is not thread-safe; execution of an existing plan on new arrays is.
-std::mutex& planner_mutex() {
-  static std::mutex m;
-  return m;
+// FFTW's planner is not thread-safe, executing a plan on new arrays is: plans are made once
+// per length under a lock and kept for the life of the process.
+fftw_plan c2r_plan(std::size_t n) {
+  static std::mutex mutex;
+  static std::map<std::size_t, fftw_plan> plans;
+  std::lock_guard lock(mutex);
+  auto it = plans.find(n);
+  if (it != plans.end()) return it->second;
+  fftw_complex* in = fftw_alloc_complex(n / 2 + 1);
+  double* out = fftw_alloc_real(n);
+  fftw_plan plan = fftw_plan_dft_c2r_1d(static_cast<int>(n), in, out, FFTW_ESTIMATE | FFTW_DESTROY_INPUT);
+  fftw_free(in);
+  fftw_free(out);
+  plans.emplace(n, plan);
+  return plan;
 }
 
 struct FftwFree {
@@ -21,21 +33,6 @@ struct FftwFree {
 };
 
 }  // namespace
-
-void fill_gaussian(RandomStream& rng, float* out, std::size_t n) {
-  constexpr double kTwoPi = 2.0 * M_PI;
-  constexpr double kInv32 = 0x1.0p-32;
-  std::size_t i = 0;
-  for (; i < n; i += 2) {
-    std::uint64_t r = rng.next_u64();
-    double u1 = (static_cast<double>(r >> 32) + 1.0) * kInv32;  // (0, 1]: finite logarithm
-    double u2 = static_cast<double>(r & 0xffffffffu) * kInv32;
-    double radius = std::sqrt(-2.0 * std::log(u1));
-    double angle = kTwoPi * u2;
-    out[i] = static_cast<float>(radius * std::cos(angle));
-    if (i + 1 < n) out[i + 1] = static_cast<float>(radius * std::sin(angle));
-  }
-}
 
 std::vector<float> shaped_gaussian(RandomStream& rng, std::size_t n, double sample_rate_hz,
                                    const std::function<double(double frequency_hz)>& amplitude) {
@@ -54,16 +51,7 @@ std::vector<float> shaped_gaussian(RandomStream& rng, std::size_t n, double samp
     s[k][1] = a * draws[2 * k + 1];
   }
   if (n % 2 == 0) s[bins - 1][1] = 0;  // the Nyquist bin of an even length is real
-  fftw_plan plan;
-  {
-    std::lock_guard lock(planner_mutex());
-    plan = fftw_plan_dft_c2r_1d(static_cast<int>(n), s, signal.get(), FFTW_ESTIMATE);
-  }
-  fftw_execute(plan);
-  {
-    std::lock_guard lock(planner_mutex());
-    fftw_destroy_plan(plan);
-  }
+  fftw_execute_dft_c2r(c2r_plan(n), s, signal.get());  // fftw_malloc'd: the plan's alignment holds
   double power = 0;
   const double* x = signal.get();
   for (std::size_t i = 0; i < n; ++i) power += x[i] * x[i];

@@ -8,11 +8,9 @@
 #include <vector>
 
 #include "core/random.hpp"
+#include "noise/gaussian.hpp"
 
 namespace stethogen::noise {
-
-// n standard normal values (Box & Muller 1958, both outputs of each pair used; 32-bit uniforms).
-void fill_gaussian(RandomStream& rng, float* out, std::size_t n);
 
 // n samples of stationary Gaussian noise at sample_rate_hz whose amplitude spectrum follows
 // amplitude(frequency_hz) (|H(f)|; power spectrum |H|^2), scaled to unit mean power. The

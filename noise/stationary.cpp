@@ -20,6 +20,33 @@ RandomStream ProcessContext::site_stream(ProcessKind kind, std::size_t site_inde
   return RandomStream(seed, record_index, stream_id(Stream::noise_base, 16 * k + 1 + site));
 }
 
+RandomStream ProcessContext::local_stream(ProcessKind kind) const {
+  return RandomStream(seed, record_index, stream_id(Stream::noise_base, 16 * static_cast<std::uint32_t>(kind) + 15));
+}
+
+void spread_over_sites(const ProcessContext& ctx, ProcessKind kind, double coherence, double spread_db,
+                       const std::function<double(double)>& amplitude, const float* envelope,
+                       SiteArray<float>& out) {
+  const std::size_t n = ctx.n_samples;
+  const std::vector<float> none(n, 0.0f);
+  RandomStream shared_rng = ctx.shared_stream(kind), local_rng = ctx.local_stream(kind);
+  const std::vector<float> shared = coherence > 0 ? shaped_gaussian(shared_rng, n, ctx.sample_rate_hz, amplitude) : none;
+  const std::vector<float> local = coherence < 1 ? shaped_gaussian(local_rng, n, ctx.sample_rate_hz, amplitude) : none;
+  const float w_shared = static_cast<float>(std::sqrt(coherence));
+  const float w_local = static_cast<float>(std::sqrt(1.0 - coherence));
+  for (std::size_t s = 0; s < ctx.sites.size(); ++s) {
+    RandomStream rng = ctx.site_stream(kind, s);
+    const float g = static_cast<float>(std::pow(10.0, rng.uniform(-spread_db, spread_db) / 20.0));
+    const std::size_t lag = (1 + static_cast<std::size_t>(ctx.sites[s])) * n / (kAllSites.size() + 1);
+    float* row = out.row(s);
+    for (std::size_t i = 0; i < n; ++i) {
+      std::size_t j = i + lag < n ? i + lag : i + lag - n;
+      float e = envelope ? g * envelope[i] : g;
+      row[i] = e * (w_shared * shared[i] + w_local * local[j]);
+    }
+  }
+}
+
 namespace {
 
 // Per-site level spread of the processes that reach all sites (room noise, hum, recordings):
@@ -66,23 +93,7 @@ Contribution ambient_noise(const ProcessContext& ctx, const AmbientNoise& cfg) {
     }
   }
   // One room: a shared component heard at every site plus a smaller local part per site.
-  RandomStream shared_rng = ctx.shared_stream(ProcessKind::ambient);
-  std::vector<float> shared = cfg.site_coherence > 0
-                                  ? shaped_gaussian(shared_rng, ctx.n_samples, ctx.sample_rate_hz, amplitude)
-                                  : std::vector<float>(ctx.n_samples, 0.0f);
-  const float w_shared = static_cast<float>(std::sqrt(cfg.site_coherence));
-  const float w_local = static_cast<float>(std::sqrt(1.0 - cfg.site_coherence));
-  for (std::size_t s = 0; s < ctx.sites.size(); ++s) {
-    RandomStream rng = ctx.site_stream(ProcessKind::ambient, s);
-    const float g = static_cast<float>(site_gain(rng));
-    float* row = c.samples.row(s);
-    if (w_local > 0) {
-      std::vector<float> local = shaped_gaussian(rng, ctx.n_samples, ctx.sample_rate_hz, amplitude);
-      for (std::size_t i = 0; i < ctx.n_samples; ++i) row[i] = g * (w_shared * shared[i] + w_local * local[i]);
-    } else {
-      for (std::size_t i = 0; i < ctx.n_samples; ++i) row[i] = g * shared[i];
-    }
-  }
+  spread_over_sites(ctx, ProcessKind::ambient, cfg.site_coherence, kSiteSpreadDb, amplitude, nullptr, c.samples);
   normalize_to_unit_power(c.samples);
   return c;
 }

@@ -101,7 +101,8 @@ inline void write_f32(const std::string& path, const std::vector<float>& x) {
 inline std::map<std::string, double> reference(const std::string& args) {
   const char* py = std::getenv("STETHOGEN_PYTHON");
   const char* src = std::getenv("STETHOGEN_SOURCE_DIR");
-  std::string script = std::string(src ? src : ".") + "/tests/noise/noise_reference.py";
+  if (!src) throw std::runtime_error("STETHOGEN_SOURCE_DIR is not set (ctest sets it; export it to run by hand)");
+  std::string script = std::string(src) + "/tests/noise/noise_reference.py";
   std::string cmd = std::string(py ? py : "/usr/bin/python3") + " " + script + " " + args + " 2>&1";
   std::unique_ptr<FILE, int (*)(FILE*)> pipe(popen(cmd.c_str(), "r"), pclose);
   if (!pipe) throw std::runtime_error("cannot run " + cmd);

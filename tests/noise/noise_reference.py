@@ -83,7 +83,17 @@ def resample(wav_path, noise_path, up, down, edge):
     print("error_power_db", 10 * np.log10(np.sum(err ** 2) / np.sum((gain * ref) ** 2)))
 
 
-checks = {"slope": (slope, 1), "band": (band, 1), "breath": (breath, 1), "peaks": (peaks, 1),
+def normal(path):
+    import scipy.stats as st
+    x = load(path)
+    print("ks_pvalue", st.kstest(x, "norm").pvalue)
+    print("mean", x.mean())
+    print("variance", x.var())
+    print("excess_kurtosis", st.kurtosis(x))
+    print("tail_fraction_beyond_4sd", np.mean(np.abs(x) > 4))
+
+
+checks = {"normal": (normal, 1), "slope": (slope, 1), "band": (band, 1), "breath": (breath, 1), "peaks": (peaks, 1),
           "snr": (snr, 2), "resample": (resample, 2)}
 function, n_paths = checks[sys.argv[1]]
 args = sys.argv[2:]
