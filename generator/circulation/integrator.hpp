@@ -1,0 +1,62 @@
+// Boost.Odeint's adaptive Dormand-Prince 5(4) stepper with dense output (Dormand & Prince 1980,
+// J Comput Appl Math 6:19), wrapped: bounded step count, and a stall, a non-finite state or a
+// negative volume becomes a RecordFailure naming the record, the simulated time and the context.
+#pragma once
+
+#include <cstdint>
+#include <string>
+
+#include <boost/numeric/odeint.hpp>
+
+#include "generator/circulation/model.hpp"
+
+namespace stethogen::gen {
+
+struct IntegratorSettings {
+  double abs_tolerance = 1e-6;
+  double rel_tolerance = 1e-6;
+  double max_step_s = 0.005;       // keeps activation onsets and the sample grid well resolved
+  double min_step_s = 1e-9;        // a smaller accepted step counts as a stall
+  std::uint64_t max_steps = 2'000'000;
+};
+
+class Integrator {
+ public:
+  using Stepper = boost::numeric::odeint::dense_output_runge_kutta<
+      boost::numeric::odeint::controlled_runge_kutta<boost::numeric::odeint::runge_kutta_dopri5<CirculationState>>>;
+
+  // context: record id and key parameters, quoted in any failure.
+  Integrator(const CirculationModel& model, const CirculationState& x0, double t0_s,
+             const IntegratorSettings& settings, std::string record_id, std::string context);
+
+  // Takes steps until the current time reaches t_end_s; after each step calls on_step(t_prev, t_now),
+  // during which state_at() interpolates anywhere in [t_prev, t_now].
+  template <class OnStep>
+  void advance_to(double t_end_s, OnStep&& on_step) {
+    while (stepper_.current_time() < t_end_s) {
+      const auto [t_prev, t_now] = checked_step();
+      on_step(t_prev, t_now);
+    }
+  }
+
+  void state_at(double t_s, CirculationState& x) const;
+  double time_s() const { return stepper_.current_time(); }
+  const CirculationState& state() const { return stepper_.current_state(); }
+  std::uint64_t steps() const { return steps_; }
+  [[noreturn]] void fail(const std::string& reason) const;
+
+ private:
+  struct System {
+    const CirculationModel* model;
+    void operator()(const CirculationState& x, CirculationState& dxdt, double t) const { model->rhs(x, dxdt, t); }
+  };
+  std::pair<double, double> checked_step();
+
+  const CirculationModel& model_;
+  IntegratorSettings settings_;
+  std::string record_id_, context_;
+  mutable Stepper stepper_;
+  std::uint64_t steps_ = 0;
+};
+
+}  // namespace stethogen::gen

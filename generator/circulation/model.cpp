@@ -1,0 +1,132 @@
+#include "generator/circulation/model.hpp"
+
+#include <algorithm>
+#include <cmath>
+
+namespace stethogen::gen {
+
+namespace {
+
+constexpr double kDynPerMmhg = 1333.22;
+
+// Time-varying elastance chamber (Suga et al. 1973; exponential EDPVR of Smith et al. 2004).
+inline double chamber_pressure(const ChamberParams& c, double e, double v) {
+  const double dv = v - c.v0_ml;
+  return e * c.ees_mmhg_per_ml * dv + (1.0 - e) * c.ed_a_mmhg * (std::exp(c.ed_b_per_ml * dv) - 1.0);
+}
+
+inline double compliance_pressure(const ComplianceParams& c, double v) {
+  return (v - c.unstressed_ml) / c.compliance_ml_per_mmhg;
+}
+
+}  // namespace
+
+CirculationModel::CirculationModel(const CirculationParams& params, const ActivationPlan* activation,
+                                   const Respiration* respiration)
+    : p_(params), activation_(activation), respiration_(respiration) {
+  const double rho = p_.blood_density_g_per_cm3;
+  valves_ = {coefficients(p_.mitral, rho), coefficients(p_.aortic, rho), coefficients(p_.tricuspid, rho),
+             coefficients(p_.pulmonic, rho)};
+}
+
+CirculationModel::ValveCoefficients CirculationModel::coefficients(const ValveParams& v, double rho) {
+  return {rho / (2.0 * kDynPerMmhg), rho * v.effective_length_cm / kDynPerMmhg,
+          v.annulus_area_cm2 * v.max_open_fraction, v.annulus_area_cm2 * v.min_open_fraction,
+          v.k_open_per_mmhg_s, v.k_close_per_mmhg_s};
+}
+
+// Mynard et al. 2012: dp = B q|q| + L dq/dt over A_eff = A_closed + (A_open - A_closed) zeta;
+// the leaflets open at (1 - zeta) K_vo dp for dp > 0 and close at zeta K_vc dp for dp < 0.
+void CirculationModel::valve(const ValveCoefficients& c, double dp, double q, double zeta, double& dq,
+                             double& dzeta) {
+  const double z = std::clamp(zeta, 0.0, 1.0);
+  const double area = c.area_closed_cm2 + (c.area_open_cm2 - c.area_closed_cm2) * z;
+  const double bernoulli = c.bernoulli_factor / (area * area);
+  const double inertance = c.inertance_factor / area;
+  dq = (dp - bernoulli * q * std::fabs(q)) / inertance;
+  dzeta = dp > 0.0 ? (1.0 - z) * c.k_open * dp : z * c.k_close * dp;
+}
+
+void CirculationModel::outputs(const CirculationState& x, double t, ModelOutputs& o) const {
+  const double swing = respiration_->swing(respiration_->phase(t));
+  const double fall = respiration_->depth_mmhg() * swing;  // pleural fall below end-expiration
+  const double pt = respiration_->end_expiratory_mmhg() - fall;
+  const double lung_factor = 1.0 / (1.0 + p_.lung_capacitance_gain * swing);
+  for (int c = 0; c < 4; ++c) o.activation[c] = activation_->activation(c, t);
+  const double vpcd = x[kVlv] + x[kVrv] - p_.pericardium_v0_ml;
+  o.p_pericardium = p_.pericardium_p0_mmhg * (std::exp(p_.pericardium_lambda_per_ml * vpcd) - 1.0);
+  o.p_thorax = pt;
+  o.p_la = chamber_pressure(p_.la, o.activation[kLa], x[kVla]) + pt;
+  o.p_ra = chamber_pressure(p_.ra, o.activation[kRa], x[kVra]) + pt;
+  o.p_lv = chamber_pressure(p_.lv, o.activation[kLv], x[kVlv]) + o.p_pericardium + pt;
+  o.p_rv = chamber_pressure(p_.rv, o.activation[kRv], x[kVrv]) + o.p_pericardium + pt;
+  // Intrathoracic vessels feel the pleural pressure; the systemic arteries and veins do not.
+  o.p_ao = compliance_pressure(p_.aorta, x[kVao]) + pt;
+  o.p_sa = compliance_pressure(p_.systemic_arteries, x[kVsa]);
+  o.p_sv = compliance_pressure(p_.systemic_veins, x[kVsv]) + p_.abdominal_pressure_per_pleural * fall;
+  o.p_tv = compliance_pressure(p_.thoracic_veins, x[kVtv]) + pt;
+  o.p_pa = compliance_pressure(p_.pulmonary_artery, x[kVpa]) * lung_factor + pt;
+  o.p_lu = compliance_pressure(p_.lung_arteries, x[kVlu]) * lung_factor + pt;
+  o.p_pv = compliance_pressure(p_.pulmonary_veins, x[kVpv]) + pt;
+}
+
+void CirculationModel::rhs(const CirculationState& x, CirculationState& d, double t) const {
+  ++rhs_evaluations_;
+  ModelOutputs o;
+  outputs(x, t, o);
+  const double q_sys = (o.p_sa - o.p_sv) / p_.systemic_resistance_mmhg_s_per_ml;
+  const double q_ven = (o.p_sv - o.p_tv) / p_.venous_resistance_mmhg_s_per_ml;
+  const double q_cav = (o.p_tv - o.p_ra) / p_.caval_resistance_mmhg_s_per_ml;
+  const double q_lung = (o.p_lu - o.p_pv) / p_.pulmonary_resistance_mmhg_s_per_ml;
+  const double q_pv = (o.p_pv - o.p_la) / p_.pulmonary_venous_resistance_mmhg_s_per_ml;
+
+  valve(valves_[0], o.p_la - o.p_lv, x[kQmi], x[kZmi], d[kQmi], d[kZmi]);
+  valve(valves_[1], o.p_lv - o.p_ao, x[kQao], x[kZao], d[kQao], d[kZao]);
+  valve(valves_[2], o.p_ra - o.p_rv, x[kQtr], x[kZtr], d[kQtr], d[kZtr]);
+  valve(valves_[3], o.p_rv - o.p_pa, x[kQpu], x[kZpu], d[kQpu], d[kZpu]);
+
+  d[kQsa] = (o.p_ao - o.p_sa - p_.aortic_resistance_mmhg_s_per_ml * x[kQsa]) / p_.aortic_inertance_mmhg_s2_per_ml;
+  d[kQpa] = (o.p_pa - o.p_lu - p_.pulmonary_char_resistance_mmhg_s_per_ml * x[kQpa]) /
+            p_.pulmonary_inertance_mmhg_s2_per_ml;
+
+  d[kVla] = q_pv - x[kQmi];
+  d[kVlv] = x[kQmi] - x[kQao];
+  d[kVao] = x[kQao] - x[kQsa];
+  d[kVsa] = x[kQsa] - q_sys;
+  d[kVsv] = q_sys - q_ven;
+  d[kVtv] = q_ven - q_cav;
+  d[kVra] = q_cav - x[kQtr];
+  d[kVrv] = x[kQtr] - x[kQpu];
+  d[kVpa] = x[kQpu] - x[kQpa];
+  d[kVlu] = x[kQpa] - q_lung;
+  d[kVpv] = q_lung - q_pv;
+}
+
+double total_volume_ml(const CirculationState& x) {
+  double v = 0;
+  for (int i = kVla; i <= kVpv; ++i) v += x[i];
+  return v;
+}
+
+CirculationState initial_state(const CirculationParams& p) {
+  CirculationState x{};
+  auto vol = [](const ComplianceParams& c, double p_mmhg) { return c.unstressed_ml + c.compliance_ml_per_mmhg * p_mmhg; };
+  x[kVla] = 60;
+  x[kVlv] = 120;
+  x[kVra] = 60;
+  x[kVrv] = 130;
+  x[kVao] = vol(p.aorta, 90);
+  x[kVsa] = vol(p.systemic_arteries, 90);
+  x[kVtv] = vol(p.thoracic_veins, 6);
+  x[kVpa] = vol(p.pulmonary_artery, 16);
+  x[kVlu] = vol(p.lung_arteries, 13);
+  x[kVpv] = vol(p.pulmonary_veins, 10);
+  // The systemic veins take whatever blood is left (they hold most of it).
+  x[kVsv] = 0;
+  x[kVsv] = std::max(p.blood_volume_ml - total_volume_ml(x), 0.5 * p.systemic_veins.unstressed_ml);
+  x[kZmi] = x[kZtr] = 1.0;
+  x[kZao] = x[kZpu] = 0.0;
+  return x;
+}
+
+}  // namespace stethogen::gen

@@ -1,0 +1,93 @@
+// Parameters of the closed-loop circulation (units in every name: mmHg, mL, s, cm).
+// Defaults describe a healthy supine adult at rest; docs/physiology.md lists each value with
+// its source. generator/states maps a SubjectSpec onto a copy of these defaults.
+#pragma once
+
+namespace stethogen::gen {
+
+// A chamber with time-varying elastance: end-systolic linear, end-diastolic exponential
+// (Suga, Sagawa & Shoukas 1973, Circ Res 32:314; exponential EDPVR as in Smith et al. 2004,
+// Med Eng Phys 26:131):  P = e(t) Ees (V - V0) + (1 - e(t)) A (exp(B (V - V0)) - 1).
+struct ChamberParams {
+  double ees_mmhg_per_ml = 0;  // end-systolic elastance
+  double v0_ml = 0;            // volume at zero end-systolic pressure
+  double ed_a_mmhg = 0;        // EDPVR scale
+  double ed_b_per_ml = 0;      // EDPVR stiffness exponent
+};
+
+// A valve after Mynard, Davidson, Penny & Smolich 2012 (Int J Numer Meth Biomed Eng 28:626):
+// Bernoulli loss and inertance over an effective area that follows a leaflet state zeta in [0, 1].
+struct ValveParams {
+  double annulus_area_cm2 = 0;
+  double effective_length_cm = 0;      // inertial length of the jet
+  double k_open_per_mmhg_s = 0;        // leaflet opening rate coefficient
+  double k_close_per_mmhg_s = 0;       // leaflet closing rate coefficient
+  double max_open_fraction = 1.0;      // M_st: < 1 models stenosis
+  double min_open_fraction = 1e-4;     // M_rg: leak area when closed; > ~0.01 models regurgitation
+};
+
+// A linear compliance: P_transmural = (V - unstressed) / compliance.
+struct ComplianceParams {
+  double compliance_ml_per_mmhg = 0;
+  double unstressed_ml = 0;
+};
+
+// Electromechanical timing of the chambers relative to the beat's electrical events.
+// Ventricles: the double-Hill normalised elastance of Stergiopulos, Meister & Westerhof 1996
+// (Am J Physiol 270:H2050) with time constants tau1 = 0.269 T, tau2 = 0.452 T, exponents 1.32 and
+// 27.4, where the contraction period T = base + slope * RR grows linearly with the preceding RR
+// (the linear heart-rate dependence of systolic time intervals, Weissler et al. 1968).
+// Atria: a raised-cosine pulse (Heldt, Shim, Kamm & Mark 2002, J Appl Physiol 92:1239).
+struct ActivationTiming {
+  double lv_electromechanical_delay_s = 0.040;  // Q to the onset of LV elastance rise
+  double rv_extra_delay_s = 0.005;              // RV mechanical onset after LV at zero lv_rv_delay
+  double atrial_electromechanical_delay_s = 0.070;  // P onset to atrial contraction
+  double ventricular_period_base_s = 0.35, ventricular_period_slope = 0.55;
+  double hill_tau1_fraction = 0.269, hill_tau2_fraction = 0.452;
+  double hill_m1 = 1.32, hill_m2 = 20.0;
+  double lv_duration_scale = 1.0, rv_duration_scale = 1.0;  // state effects (failure, exercise)
+  double atrial_rise_s = 0.090, atrial_fall_s = 0.100;
+};
+
+struct CirculationParams {
+  ChamberParams lv, rv, la, ra;
+  ValveParams mitral, tricuspid, aortic, pulmonic;
+  // Pericardium around both ventricles (Smith et al. 2004): P = p0 (exp(lambda (Vlv+Vrv - v0)) - 1).
+  double pericardium_p0_mmhg = 0.5;
+  double pericardium_lambda_per_ml = 0.015;
+  double pericardium_v0_ml = 230.0;
+  // Systemic side: thoracic aorta -> (resistance + inertance) -> arteries -> resistance -> veins
+  // -> resistance -> thoracic veins -> resistance -> right atrium.
+  ComplianceParams aorta, systemic_arteries, systemic_veins, thoracic_veins;
+  double aortic_resistance_mmhg_s_per_ml = 0.04;
+  double aortic_inertance_mmhg_s2_per_ml = 0.0005;
+  double systemic_resistance_mmhg_s_per_ml = 0.95;
+  double venous_resistance_mmhg_s_per_ml = 0.03;
+  double caval_resistance_mmhg_s_per_ml = 0.008;
+  // Pulmonary side: main pulmonary artery -> (resistance + inertance) -> lung arteries ->
+  // resistance -> pulmonary veins -> resistance -> left atrium.
+  ComplianceParams pulmonary_artery, lung_arteries, pulmonary_veins;
+  double pulmonary_char_resistance_mmhg_s_per_ml = 0.01;
+  double pulmonary_inertance_mmhg_s2_per_ml = 0.0003;
+  double pulmonary_resistance_mmhg_s_per_ml = 0.06;
+  double pulmonary_venous_resistance_mmhg_s_per_ml = 0.005;
+  // Thorax: pleural pressure at end-expiration; respiration lowers it by the subject's depth.
+  double thorax_end_expiratory_mmhg = -3.0;
+  // Respiratory mechanics beyond the pleural swing (fractions of the swing at end-inspiration):
+  // the descending diaphragm raises abdominal pressure on the systemic veins (abdominal pump),
+  // and lung inflation raises pulmonary arterial capacitance, lengthening the pulmonary hangout
+  // interval (the mechanism of inspiratory P2 delay, Curtiss et al. 1975, Circulation 51:157).
+  double abdominal_pressure_per_pleural = 0.6;   // mmHg abdominal rise per mmHg pleural fall
+  double lung_capacitance_gain = 0.3;            // relative compliance rise at full inspiration
+  double blood_volume_ml = 5000.0;
+  double blood_density_g_per_cm3 = 1.06;
+  ActivationTiming timing;
+};
+
+// The healthy resting default set.
+CirculationParams default_circulation_params();
+
+// Throws InputError naming the first parameter out of its physical range.
+void check_circulation_params(const CirculationParams& p);
+
+}  // namespace stethogen::gen

@@ -1,0 +1,159 @@
+#include "generator/circulation/simulate.hpp"
+
+#include <algorithm>
+#include <cmath>
+
+#include <fmt/format.h>
+
+#include "generator/circulation/beat_analysis.hpp"
+
+namespace stethogen::gen {
+
+namespace {
+
+std::string describe(const SubjectSpec& s, const EngineSetup& e) {
+  return fmt::format("state {}, exercise_intensity {}, severity {}, heart rate {:.1f} bpm, blood volume {} mL, "
+                     "lv Ees {:.3f} mmHg/mL, rv Ees {:.3f} mmHg/mL, SVR {:.3f} mmHg s/mL",
+                     name(s.state), s.exercise_intensity, s.severity, e.rhythm.heart_rate_bpm,
+                     e.circulation.blood_volume_ml, e.circulation.lv.ees_mmhg_per_ml, e.circulation.rv.ees_mmhg_per_ml,
+                     e.circulation.systemic_resistance_mmhg_s_per_ml);
+}
+
+// Run-in at the nominal rate with pleural pressure held at end-expiration (where the recorded
+// breathing starts), until beat-to-beat change is negligible. Returns the state at a Q instant.
+CirculationState run_in(const EngineSetup& e, const SubjectSpec& subject, const IntegratorSettings& settings,
+                        const std::string& context, int& beats_used, std::uint64_t& steps, std::uint64_t& rhs) {
+  const double rr = 60.0 / e.rhythm.heart_rate_bpm;
+  std::vector<double> q(kMaxRunInBeats + 2);
+  for (std::size_t k = 0; k < q.size(); ++k) q[k] = rr * static_cast<double>(k);
+  const ActivationPlan plan = make_activation_plan(q, e.circulation.timing, e.rhythm.pr_interval_s, e.rhythm.lv_rv_delay_s);
+  const Respiration still = Respiration::apnoea(e.circulation.thorax_end_expiratory_mmhg);
+  const CirculationModel model(e.circulation, &plan, &still);
+  // Start just after the first Q so the first atrial pulse is not cut.
+  Integrator integ(model, initial_state(e.circulation), q[1], settings, subject.record_id, context);
+  CirculationState x, previous = integ.state();
+  for (int k = 2; k < static_cast<int>(q.size()); ++k) {
+    integ.advance_to(q[k], [](double, double) {});
+    integ.state_at(q[k], x);
+    const bool settled = std::fabs(x[kVlv] - previous[kVlv]) < kRunInToleranceMl &&
+                         std::fabs(x[kVrv] - previous[kVrv]) < kRunInToleranceMl && k > 3;
+    previous = x;
+    if (settled) {
+      beats_used = k - 1;
+      steps += integ.steps();
+      rhs += model.rhs_evaluations();
+      return x;
+    }
+  }
+  integ.fail(fmt::format("run-in did not settle within {} beats (volume change >= {} mL per beat)", kMaxRunInBeats,
+                         kRunInToleranceMl));
+}
+
+void push_sample(HemodynamicSeries& s, const CirculationState& x, const ModelOutputs& o, double phase) {
+  s.p_lv.push_back(o.p_lv);
+  s.p_rv.push_back(o.p_rv);
+  s.p_la.push_back(o.p_la);
+  s.p_ra.push_back(o.p_ra);
+  s.p_ao.push_back(o.p_ao);
+  s.p_pa.push_back(o.p_pa);
+  s.p_thorax.push_back(o.p_thorax);
+  s.v_lv.push_back(x[kVlv]);
+  s.v_rv.push_back(x[kVrv]);
+  s.v_la.push_back(x[kVla]);
+  s.v_ra.push_back(x[kVra]);
+  s.q_mitral.push_back(x[kQmi]);
+  s.q_tricuspid.push_back(x[kQtr]);
+  s.q_aortic.push_back(x[kQao]);
+  s.q_pulmonic.push_back(x[kQpu]);
+  s.leaflet_mitral.push_back(x[kZmi]);
+  s.leaflet_tricuspid.push_back(x[kZtr]);
+  s.leaflet_aortic.push_back(x[kZao]);
+  s.leaflet_pulmonic.push_back(x[kZpu]);
+  s.resp_phase.push_back(phase);
+}
+
+void reserve(HemodynamicSeries& s, std::size_t n) {
+  for (auto* v : {&s.p_lv, &s.p_rv, &s.p_la, &s.p_ra, &s.p_ao, &s.p_pa, &s.p_thorax, &s.v_lv, &s.v_rv, &s.v_la,
+                  &s.v_ra, &s.q_mitral, &s.q_tricuspid, &s.q_aortic, &s.q_pulmonic, &s.leaflet_mitral,
+                  &s.leaflet_tricuspid, &s.leaflet_aortic, &s.leaflet_pulmonic, &s.resp_phase})
+    v->reserve(n);
+}
+
+constexpr Valve kValves[4] = {Valve::mitral, Valve::tricuspid, Valve::aortic, Valve::pulmonic};
+constexpr int kLeaflet[4] = {kZmi, kZtr, kZao, kZpu};
+
+}  // namespace
+
+EngineRun run_engine(const SubjectSpec& subject, const IntegratorSettings& settings) {
+  EngineRun run;
+  run.setup = map_subject_to_engine(subject);
+  const EngineSetup& e = run.setup;
+  check_circulation_params(e.circulation);
+  check_rhythm_params(e.rhythm);
+  const std::string context = describe(subject, e);
+
+  CirculationResult& r = run.result;
+  r.duration_s = subject.params.duration_s;
+  r.inspiration_fraction = e.rhythm.inspiration_fraction;
+  const double rr0 = 60.0 / e.rhythm.heart_rate_bpm;
+  // RR never exceeds rr0 (1 + rsa + lf) <= 1.4 rr0, so this margin always holds a full cycle.
+  const double margin_s = rr0 * (1.0 + e.rhythm.rsa_fraction + e.rhythm.lf_fraction) + 0.25;
+  const double series_begin = -margin_s, series_end = r.duration_s + margin_s;
+  // One breath with the recorded breathing and HRV lets the respiratory pattern settle first.
+  const double breath_s = 60.0 / e.rhythm.respiration_rate_per_min;
+  const double beats_in_warmup = std::ceil(breath_s / rr0);
+  run.recording_start_s = series_begin - beats_in_warmup * rr0;
+  // The plan starts one nominal beat earlier so the handed-over pulses are all present.
+  run.rhythm = make_rhythm(e.rhythm, e.circulation.thorax_end_expiratory_mmhg, subject.dataset_seed,
+                           subject.record_index, run.recording_start_s - rr0, run.recording_start_s,
+                           series_end + 2.0 * rr0, 2);
+  run.activation = make_activation_plan(run.rhythm.lv_activation_s, e.circulation.timing, e.rhythm.pr_interval_s,
+                                        e.rhythm.lv_rv_delay_s);
+
+  run.recording_start_state = run_in(e, subject, settings, context, run.run_in_beats, r.ode_steps, r.rhs_evaluations);
+
+  const CirculationModel model(e.circulation, &run.activation, &run.rhythm.respiration);
+  Integrator integ(model, run.recording_start_state, run.recording_start_s, settings, subject.record_id, context);
+  HemodynamicSeries& s = r.series;
+  s.rate_hz = kSeriesRateHz;
+  s.t0_s = series_begin;
+  const std::size_t n_samples = static_cast<std::size_t>(std::floor((series_end - series_begin) * kSeriesRateHz)) + 1;
+  reserve(s, n_samples);
+  CirculationState previous = integ.state(), x;
+  ModelOutputs o;
+  integ.advance_to(series_end, [&](double t_prev, double t_now) {
+    const CirculationState& now = integ.state();
+    for (int i = 0; i < 4; ++i) {
+      const double g0 = previous[kLeaflet[i]] - kLeafletOpenThreshold, g1 = now[kLeaflet[i]] - kLeafletOpenThreshold;
+      if ((g0 > 0) == (g1 > 0) || t_now < series_begin) continue;
+      // Bisection on the dense output (the crossing is monotone inside one step).
+      double a = t_prev, b = t_now;
+      while (b - a > 1e-8) {
+        const double m = 0.5 * (a + b);
+        integ.state_at(m, x);
+        if ((x[kLeaflet[i]] - kLeafletOpenThreshold > 0) == (g0 > 0)) a = m; else b = m;
+      }
+      const double t_cross = 0.5 * (a + b);
+      if (t_cross >= series_begin && t_cross <= series_end)
+        r.transitions.push_back({kValves[i], g1 > 0, t_cross, 0});
+    }
+    previous = now;
+    while (s.size() < n_samples && s.time_at(s.size()) <= t_now) {
+      const double t = s.time_at(s.size());
+      integ.state_at(t, x);
+      model.outputs(x, t, o);
+      push_sample(s, x, o, run.rhythm.respiration.phase(t));
+    }
+  });
+  std::sort(r.transitions.begin(), r.transitions.end(),
+            [](const ValveTransition& a, const ValveTransition& b) { return a.time_s < b.time_s; });
+  r.ode_steps += integ.steps();
+  r.rhs_evaluations += model.rhs_evaluations();
+  r.beats = analyse_beats(s, run.rhythm.lv_activation_s, run.activation, run.rhythm.respiration,
+                          BeatTiming{e.rhythm.pr_interval_s, e.rhythm.lv_rv_delay_s}, r.transitions);
+  return run;
+}
+
+CirculationResult simulate_circulation(const SubjectSpec& subject) { return std::move(run_engine(subject).result); }
+
+}  // namespace stethogen::gen

@@ -1,0 +1,45 @@
+#include "generator/rhythm/respiration.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <utility>
+
+namespace stethogen::gen {
+
+Respiration::Respiration(std::vector<double> breath_starts_s, double nominal_period_s,
+                         double inspiration_fraction, double end_expiratory_mmhg, double depth_mmhg)
+    : starts_(std::move(breath_starts_s)),
+      period_s_(nominal_period_s),
+      inspiration_fraction_(inspiration_fraction),
+      end_expiratory_mmhg_(end_expiratory_mmhg),
+      depth_mmhg_(depth_mmhg) {}
+
+Respiration Respiration::apnoea(double pleural_mmhg) { return Respiration({0.0}, 4.0, 0.4, pleural_mmhg, 0.0); }
+
+double Respiration::phase(double t_s) const {
+  double phase_time;
+  double period;
+  if (starts_.size() < 2 || t_s < starts_.front()) {
+    const double origin = starts_.empty() ? 0.0 : starts_.front();
+    period = period_s_;
+    phase_time = t_s - origin;
+  } else if (t_s >= starts_.back()) {
+    period = period_s_;
+    phase_time = t_s - starts_.back();
+  } else {
+    auto it = std::upper_bound(starts_.begin(), starts_.end(), t_s);
+    period = *it - *(it - 1);
+    phase_time = t_s - *(it - 1);
+  }
+  double ph = phase_time / period;
+  ph -= std::floor(ph);
+  return ph < 1.0 ? ph : 0.0;
+}
+
+double Respiration::swing(double ph) const {
+  const double f = inspiration_fraction_;
+  if (ph < f) return 0.5 * (1.0 - std::cos(M_PI * ph / f));
+  return 0.5 * (1.0 + std::cos(M_PI * (ph - f) / (1.0 - f)));
+}
+
+}  // namespace stethogen::gen

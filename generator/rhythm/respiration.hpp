@@ -1,0 +1,43 @@
+// Respiration as its own slow oscillator: a sequence of breaths with breath-to-breath period
+// variation, each split into inspiration (fraction f of the breath) and expiration. Pleural
+// (intrathoracic) pressure falls smoothly through inspiration and recovers in expiration.
+#pragma once
+
+#include <vector>
+
+namespace stethogen::gen {
+
+class Respiration {
+ public:
+  Respiration() = default;  // apnoea at -4 mmHg
+  // breath_starts_s: increasing start times of the breaths (start of inspiration); the last
+  // entry closes the last breath. Outside the covered span breaths repeat with the nominal period.
+  Respiration(std::vector<double> breath_starts_s, double nominal_period_s, double inspiration_fraction,
+              double end_expiratory_mmhg, double depth_mmhg);
+  // No breathing: pleural pressure held at a constant value.
+  static Respiration apnoea(double pleural_mmhg);
+
+  // Phase in [0, 1), 0 = start of inspiration.
+  double phase(double t_s) const;
+  bool inspiration(double t_s) const { return phase(t_s) < inspiration_fraction_; }
+  // Depth shape in [0, 1]: 0 at end-expiration, 1 at end-inspiration; C1-continuous raised cosines.
+  double swing(double phase) const;
+  double pleural_pressure_mmhg(double t_s) const {
+    return end_expiratory_mmhg_ - depth_mmhg_ * swing(phase(t_s));
+  }
+
+  const std::vector<double>& breath_starts_s() const { return starts_; }
+  double nominal_period_s() const { return period_s_; }
+  double inspiration_fraction() const { return inspiration_fraction_; }
+  double end_expiratory_mmhg() const { return end_expiratory_mmhg_; }
+  double depth_mmhg() const { return depth_mmhg_; }
+
+ private:
+  std::vector<double> starts_;
+  double period_s_ = 4.0;
+  double inspiration_fraction_ = 0.4;
+  double end_expiratory_mmhg_ = -4.0;
+  double depth_mmhg_ = 0.0;
+};
+
+}  // namespace stethogen::gen
