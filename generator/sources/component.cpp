@@ -1,0 +1,58 @@
+#include "generator/sources/component.hpp"
+
+#include <cmath>
+#include <numbers>
+
+namespace stethogen::gen {
+namespace {
+
+double shape(double x) {
+  if (x <= 0) return 0.0;
+  double r = x / kEnvelopeOrder;
+  return std::pow(r, kEnvelopeOrder) * std::exp(kEnvelopeOrder - x);
+}
+
+// Bisection on a monotone branch of the envelope.
+double solve_branch(double fraction, double lo, double hi, bool rising) {
+  for (int i = 0; i < 200; ++i) {
+    double mid = 0.5 * (lo + hi);
+    bool below = shape(mid) < fraction;
+    if (below == rising) lo = mid; else hi = mid;
+  }
+  return 0.5 * (lo + hi);
+}
+
+const double kOnsetX = envelope_rising_crossing(kEnvelopeThreshold);
+const double kOffsetX = envelope_falling_crossing(kEnvelopeThreshold);
+const double kSupportX = envelope_falling_crossing(kSupportFraction);
+
+}  // namespace
+
+double envelope_rising_crossing(double fraction) { return solve_branch(fraction, 0.0, kEnvelopeOrder, true); }
+double envelope_falling_crossing(double fraction) {
+  return solve_branch(fraction, kEnvelopeOrder, 200.0, false);
+}
+
+double SoundComponent::envelope(double time_s) const { return amplitude * shape((time_s - start_s) / tau_s); }
+
+double SoundComponent::instantaneous_frequency_hz(double time_s) const {
+  double t = std::max(0.0, time_s - start_s);
+  return f_end_hz + (f_start_hz - f_end_hz) * std::exp(-t / chirp_tau_s);
+}
+
+std::complex<double> SoundComponent::analytic(double time_s) const {
+  double t = time_s - start_s;
+  if (t <= 0) return {0.0, 0.0};
+  double e = envelope(time_s);
+  if (e == 0.0) return {0.0, 0.0};
+  // Phase = 2 pi * integral of the instantaneous frequency from the start.
+  double cycles = f_end_hz * t + (f_start_hz - f_end_hz) * chirp_tau_s * (1.0 - std::exp(-t / chirp_tau_s));
+  return std::polar(e, 2.0 * std::numbers::pi * cycles);
+}
+
+double SoundComponent::support_end_s() const { return start_s + kSupportX * tau_s; }
+double SoundComponent::onset_s() const { return start_s + kOnsetX * tau_s; }
+double SoundComponent::peak_s() const { return start_s + kEnvelopeOrder * tau_s; }
+double SoundComponent::offset_s() const { return start_s + kOffsetX * tau_s; }
+
+}  // namespace stethogen::gen

@@ -1,0 +1,46 @@
+// Second-order IIR sections (biquads) in cascade: the one filter form used for the chest wall and
+// the sensors. Designs go through the bilinear transform with the corner pre-warped, the
+// convention of scipy.signal.butter(..., fs=...), so the coefficients can be compared one to one.
+#pragma once
+
+#include <complex>
+#include <vector>
+
+namespace stethogen::gen {
+
+// y[n] = b0 x[n] + b1 x[n-1] + b2 x[n-2] - a1 y[n-1] - a2 y[n-2]   (a0 normalised to 1)
+struct Biquad {
+  double b0 = 1, b1 = 0, b2 = 0, a1 = 0, a2 = 0;
+};
+
+// A cascade of biquads; an empty cascade passes the signal unchanged (gain applied).
+struct FilterCascade {
+  std::vector<Biquad> sections;
+  double gain = 1.0;
+
+  // Complex frequency response at frequency_hz for sample rate fs_hz.
+  std::complex<double> response(double frequency_hz, double fs_hz) const;
+  // Time constant (s) of the slowest pole: how long the impulse response takes to fall by 1/e.
+  double slowest_time_constant_s(double fs_hz) const;
+  void append(const FilterCascade& other);
+};
+
+// Butterworth sections, corner frequency_hz pre-warped; corners at or above 0.45 fs are
+// clamped to 0.45 fs (see docs/sounds.md: above that the corner lies outside the band we keep).
+Biquad butter_lowpass1(double corner_hz, double fs_hz);
+Biquad butter_highpass1(double corner_hz, double fs_hz);
+Biquad butter_lowpass2(double corner_hz, double fs_hz);
+Biquad butter_highpass2(double corner_hz, double fs_hz);
+// Peaking equaliser (Bristow-Johnson, "Cookbook formulae for audio EQ biquad filter
+// coefficients"): gain_db at centre_hz, bandwidth set by q.
+Biquad peaking(double centre_hz, double q, double gain_db, double fs_hz);
+
+// Largest corner frequency the designs accept at this rate.
+double max_corner_hz(double fs_hz);
+
+// Filters in place from a zero state (transposed direct form II). T = float, double or
+// std::complex<double> (real coefficients act on real and imaginary parts alike).
+template <typename T>
+void filter_in_place(const FilterCascade& cascade, T* data, std::size_t n);
+
+}  // namespace stethogen::gen

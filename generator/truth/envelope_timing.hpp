@@ -1,0 +1,21 @@
+// Onset, peak and offset of a sound from its envelope (definition in docs/sounds.md, "Truth"):
+// the peak is the envelope's maximum, onset and offset are where the envelope crosses
+// kEnvelopeThreshold of that peak on either side, all interpolated between samples.
+#pragma once
+
+#include <cmath>
+#include <cstddef>
+
+namespace stethogen::gen {
+
+struct SoundTiming {
+  double onset_s = NAN, peak_s = NAN, offset_s = NAN;
+  double peak_envelope = 0;
+  bool valid() const { return std::isfinite(peak_s); }
+};
+
+// envelope[i] is at time t0_s + i / rate_hz. Returns an invalid timing for an all-zero envelope.
+SoundTiming measure_envelope(const double* envelope, std::size_t n, double t0_s, double rate_hz,
+                             double threshold_fraction);
+
+}  // namespace stethogen::gen
