@@ -43,8 +43,8 @@ Contribution breath_noise(const ProcessContext& ctx, const BreathNoise& cfg,
   auto envelope_at = [&](std::size_t i) {
     double p = resp_phase(static_cast<double>(i) / ctx.sample_rate_hz);
     p -= std::floor(p);
-    if (p < fi) return std::pow(std::sin(M_PI * p / fi), 2);
-    return expiration_gain * std::pow(std::sin(M_PI * (p - fi) / (1 - fi)), 2);
+    double s = p < fi ? std::sin(M_PI * p / fi) : std::sin(M_PI * (p - fi) / (1 - fi));
+    return (p < fi ? 1.0 : expiration_gain) * s * s;
   };
   std::vector<float> envelope(n);
   for (std::size_t i0 = 0; i0 < n; i0 += kEnvelopeStep) {

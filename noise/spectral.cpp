@@ -34,8 +34,15 @@ struct FftwFree {
 
 }  // namespace
 
-std::vector<float> shaped_gaussian(RandomStream& rng, std::size_t n, double sample_rate_hz,
-                                   const std::function<double(double frequency_hz)>& amplitude) {
+std::vector<double> amplitude_response(std::size_t n, double sample_rate_hz,
+                                       const std::function<double(double frequency_hz)>& amplitude) {
+  std::vector<double> a(n / 2 + 1, 0.0);
+  const double bin_hz = sample_rate_hz / static_cast<double>(n);
+  for (std::size_t k = 1; k < a.size(); ++k) a[k] = amplitude(static_cast<double>(k) * bin_hz);
+  return a;
+}
+
+std::vector<float> shaped_gaussian(RandomStream& rng, const std::vector<double>& response, std::size_t n) {
   std::vector<float> out(n, 0.0f);
   if (n < 2) return out;
   const std::size_t bins = n / 2 + 1;
@@ -43,10 +50,9 @@ std::vector<float> shaped_gaussian(RandomStream& rng, std::size_t n, double samp
   std::unique_ptr<double, FftwFree> signal(fftw_alloc_real(n));
   std::vector<float> draws(2 * bins);
   fill_gaussian(rng, draws.data(), draws.size());
-  const double bin_hz = sample_rate_hz / static_cast<double>(n);
   fftw_complex* s = spectrum.get();
   for (std::size_t k = 0; k < bins; ++k) {
-    double a = k == 0 ? 0.0 : amplitude(k * bin_hz);
+    double a = k == 0 ? 0.0 : response[k];
     s[k][0] = a * draws[2 * k];
     s[k][1] = a * draws[2 * k + 1];
   }
@@ -63,8 +69,15 @@ std::vector<float> shaped_gaussian(RandomStream& rng, std::size_t n, double samp
 
 double mean_power(const float* x, std::size_t n) {
   if (n == 0) return 0;
+  // Independent partial sums let the additions overlap (and vectorise).
+  constexpr std::size_t kLanes = 8;
+  double lane[kLanes] = {};
+  std::size_t i = 0;
+  for (; i + kLanes <= n; i += kLanes)
+    for (std::size_t k = 0; k < kLanes; ++k) lane[k] += static_cast<double>(x[i + k]) * x[i + k];
   double sum = 0;
-  for (std::size_t i = 0; i < n; ++i) sum += static_cast<double>(x[i]) * x[i];
+  for (; i < n; ++i) sum += static_cast<double>(x[i]) * x[i];
+  for (double v : lane) sum += v;
   return sum / static_cast<double>(n);
 }
 

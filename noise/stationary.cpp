@@ -30,8 +30,9 @@ void spread_over_sites(const ProcessContext& ctx, ProcessKind kind, double coher
   const std::size_t n = ctx.n_samples;
   const std::vector<float> none(n, 0.0f);
   RandomStream shared_rng = ctx.shared_stream(kind), local_rng = ctx.local_stream(kind);
-  const std::vector<float> shared = coherence > 0 ? shaped_gaussian(shared_rng, n, ctx.sample_rate_hz, amplitude) : none;
-  const std::vector<float> local = coherence < 1 ? shaped_gaussian(local_rng, n, ctx.sample_rate_hz, amplitude) : none;
+  const std::vector<double> response = amplitude_response(n, ctx.sample_rate_hz, amplitude);
+  const std::vector<float> shared = coherence > 0 ? shaped_gaussian(shared_rng, response, n) : none;
+  const std::vector<float> local = coherence < 1 ? shaped_gaussian(local_rng, response, n) : none;
   const float w_shared = static_cast<float>(std::sqrt(coherence));
   const float w_local = static_cast<float>(std::sqrt(1.0 - coherence));
   for (std::size_t s = 0; s < ctx.sites.size(); ++s) {
@@ -139,22 +140,36 @@ Contribution hum_noise(const ProcessContext& ctx, const HumNoise& cfg) {
     }
     return drift_lo + (drift_hi - drift_lo) * static_cast<double>(k) / kDriftStep;
   };
-  const double w1 = 2 * M_PI * cfg.frequency_hz / ctx.sample_rate_hz;
-  const std::complex<double> step = std::polar(1.0, w1);
+  std::vector<float> envelope(n), sin_h(n), cos_h(n);
+  for (std::size_t i = 0; i < n; ++i) envelope[i] = static_cast<float>(1.0 + cfg.drift * drift_at(i));
   constexpr std::size_t kResync = 4096;  // exact phasor every block: no accumulated rounding
-  std::complex<double> z1;
-  std::vector<std::complex<double>> zh(n_harmonics);
-  for (std::size_t i = 0; i < n; ++i) {
-    if (i % kResync == 0) z1 = std::polar(1.0, std::fmod(w1 * static_cast<double>(i), 2 * M_PI));
-    else z1 *= step;
-    zh[0] = z1;
-    for (int h = 1; h < n_harmonics; ++h) zh[h] = zh[h - 1] * z1;
-    double envelope = 1.0 + cfg.drift * drift_at(i);
-    for (std::size_t s = 0; s < ctx.sites.size(); ++s) {
-      double sum = 0;
-      for (int h = 0; h < n_harmonics; ++h) sum += (zh[h] * weights[s][h]).imag();
-      c.samples.at(s, i) = static_cast<float>(envelope * sum);
+  for (int h = 1; h <= n_harmonics; ++h) {
+    const double w = 2 * M_PI * h * cfg.frequency_hz / ctx.sample_rate_hz;
+    const double step_re = std::cos(w), step_im = std::sin(w);
+    double re = 1, im = 0;  // the phasor exp(i w k), rotated one sample at a time
+    for (std::size_t i = 0; i < n; ++i) {
+      if (i % kResync == 0) {
+        double phase = std::fmod(w * static_cast<double>(i), 2 * M_PI);
+        re = std::cos(phase);
+        im = std::sin(phase);
+      } else {
+        double next_re = re * step_re - im * step_im;
+        im = re * step_im + im * step_re;
+        re = next_re;
+      }
+      sin_h[i] = static_cast<float>(im);
+      cos_h[i] = static_cast<float>(re);
     }
+    // Im(z * a) for the site's complex weight a.
+    for (std::size_t s = 0; s < ctx.sites.size(); ++s) {
+      const auto re = static_cast<float>(weights[s][h - 1].real()), im = static_cast<float>(weights[s][h - 1].imag());
+      float* row = c.samples.row(s);
+      for (std::size_t i = 0; i < n; ++i) row[i] += re * sin_h[i] + im * cos_h[i];
+    }
+  }
+  for (std::size_t s = 0; s < ctx.sites.size(); ++s) {
+    float* row = c.samples.row(s);
+    for (std::size_t i = 0; i < n; ++i) row[i] *= envelope[i];
   }
   normalize_to_unit_power(c.samples);
   return c;
