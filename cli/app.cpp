@@ -19,6 +19,9 @@ int run(int argc, const char* const* argv) {
   // A verb is listed here once it does real work.
   std::vector<Command> commands = {
       add_check(root),
+      add_inspect(root),
+      add_verify(root),
+      add_export(root),
       // verbs are appended here as they land
   };
 
