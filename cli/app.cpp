@@ -19,6 +19,11 @@ int run(int argc, const char* const* argv) {
   // A verb is listed here once it does real work.
   std::vector<Command> commands = {
       add_check(root),
+      add_score(root),
+      add_split(root),
+      add_detect(root),
+      add_generate(root),
+      add_merge(root),
       add_inspect(root),
       add_verify(root),
       add_export(root),
