@@ -6,6 +6,7 @@
 #include <fmt/format.h>
 
 #include "core/error.hpp"
+#include "core/version.hpp"
 
 namespace stethogen::bundle {
 
@@ -93,6 +94,10 @@ std::string format_verify_report(const BundleReader& reader, const VerifyReport&
     out += fmt::format("  incomplete  {} check(s) could not run\n", counts[FindingKind::incomplete]);
   for (const Finding& f : report.findings)
     out += fmt::format("{}: {}{}\n", name(f.kind), f.record_id.empty() ? "" : "record " + f.record_id + ": ", f.message);
+  if (counts[FindingKind::mismatch] > 0)
+    out += fmt::format("note: regenerated data differ when the stored data were modified, or when the bundle was "
+                       "written by a build whose synthesis differs from this one (bundle generator {}, this build {})\n",
+                       reader.attributes().generator_version, kGeneratorVersion);
   const int code = report.exit_code();
   out += code == 0 ? "verify: all checks passed\n"
          : code == 1 ? "verify: FAILED\n"

@@ -61,6 +61,53 @@ ProcessResult run_python(const ScratchDir& dir, const std::string& name, const s
   return run_command(command);
 }
 
+std::string tiny_recipe(const std::string& extra_noise) {
+  return R"TOML([dataset]
+name = "tiny"
+seed = 11
+sample_rate_hz = 2000
+duration_s = 3
+sites = ["aortic", "mitral"]
+sensor = "electronic"
+
+[noise.room]
+sensor_white = { level_db = -12 }
+ambient = { color = "pink", level_db = -6 }
+friction = { rate_per_min = 20, duration_ms = [30, 150], level_db = 6 }
+)TOML" + extra_noise + R"TOML(
+
+[[population]]
+name = "calm"
+count = 2
+state = "rest"
+snr_db = { uniform = [10, 20] }
+noise = "room"
+
+[[population]]
+name = "weak"
+count = 2
+state = "lv_failure"
+severity = 0.6
+snr_db = { uniform = [0, 10] }
+noise = "room"
+)TOML";
+}
+
+ProcessResult run_stethogen(const std::vector<std::string>& args) {
+  std::string command = shell_quote(env_or("STETHOGEN_BINARY", "stethogen"));
+  for (const std::string& a : args) {
+    command += ' ';
+    command += shell_quote(a);
+  }
+  return run_command(command);
+}
+
+ProcessResult generate_bundle(const ScratchDir& dir, const std::string& name, const std::string& recipe_text) {
+  const fs::path recipe = dir / (name + ".toml");
+  std::ofstream(recipe) << recipe_text;
+  return run_stethogen({"generate", recipe.string(), "-o", (dir / (name + ".h5")).string(), "--quiet"});
+}
+
 void write_raw_f32(const fs::path& path, const std::vector<float>& values) {
   std::ofstream out(path, std::ios::binary);
   out.write(reinterpret_cast<const char*>(values.data()), static_cast<std::streamsize>(values.size() * sizeof(float)));

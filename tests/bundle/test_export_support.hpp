@@ -40,6 +40,16 @@ ProcessResult run_python(const ScratchDir& dir, const std::string& name, const s
 // A shell-quoted argument.
 std::string shell_quote(const std::string& s);
 
+// A tiny recipe for end-to-end tests: 4 records of 3 s at 2000 Hz, 2 sites, two populations
+// (rest and LV failure), with noise. extra_noise is appended to the noise profile's table.
+std::string tiny_recipe(const std::string& extra_noise = "");
+
+// Runs `stethogen ARGS` (the binary under test, env STETHOGEN_BINARY).
+ProcessResult run_stethogen(const std::vector<std::string>& args);
+
+// Writes recipe text to dir/name.toml and generates dir/name.h5; the result of generate.
+ProcessResult generate_bundle(const ScratchDir& dir, const std::string& name, const std::string& recipe_text);
+
 // Writes floats as raw little-endian float32 (numpy.fromfile(path, '<f4') reads them).
 void write_raw_f32(const std::filesystem::path& path, const std::vector<float>& values);
 
