@@ -22,10 +22,11 @@ constexpr double kDbPerOctaveToExponent = 1.0 / (20.0 * 0.30102999566398120);  /
 constexpr std::size_t kEnvelopeStep = 8;
 
 double breath_amplitude(const BreathNoise& cfg, double f) {
-  double a = 1.0;
-  if (f > cfg.corner_hz) a *= std::pow(f / cfg.corner_hz, cfg.slope_db_per_octave * kDbPerOctaveToExponent);
-  if (f > cfg.upper_hz) a *= std::pow(f / cfg.upper_hz, kUpperRolloffDbPerOctave * kDbPerOctaveToExponent);
-  return a;
+  // Piecewise power law in log frequency: one logarithm and one exponential per bin.
+  double log_gain = 0;
+  if (f > cfg.corner_hz) log_gain += cfg.slope_db_per_octave * kDbPerOctaveToExponent * std::log(f / cfg.corner_hz);
+  if (f > cfg.upper_hz) log_gain += kUpperRolloffDbPerOctave * kDbPerOctaveToExponent * std::log(f / cfg.upper_hz);
+  return log_gain == 0 ? 1.0 : std::exp(log_gain);
 }
 
 }  // namespace
