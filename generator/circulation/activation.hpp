@@ -36,6 +36,12 @@ double pulse_shape(const ActivationPulse& p, double t_s);
 // A double-Hill pulse normalised to a peak of 1.
 ActivationPulse hill_pulse(double onset_s, double tau1_s, double tau2_s, double m1, double m2);
 
+// Stretches a ventricular pulse in time by factor (its peak stays 1).
+inline void stretch_pulse(ActivationPulse& p, double factor) {
+  p.a_s *= factor;
+  p.b_s *= factor;
+}
+
 // lv_activation_s: Q-wave equivalents. The first beat's durations use the interval to the second.
 ActivationPlan make_activation_plan(const std::vector<double>& lv_activation_s, const ActivationTiming& timing,
                                     double pr_interval_s, double lv_rv_delay_s);

@@ -32,11 +32,12 @@ CirculationModel::CirculationModel(const CirculationParams& params, const Activa
 CirculationModel::ValveCoefficients CirculationModel::coefficients(const ValveParams& v, double rho) {
   return {rho / (2.0 * kDynPerMmhg), rho * v.effective_length_cm / kDynPerMmhg,
           v.annulus_area_cm2 * v.max_open_fraction, v.annulus_area_cm2 * v.min_open_fraction,
-          v.k_open_per_mmhg_s, v.k_close_per_mmhg_s};
+          v.k_open_per_mmhg_s, v.k_close_per_mmhg_s, v.open_threshold_mmhg, v.close_threshold_mmhg};
 }
 
 // Mynard et al. 2012: dp = B q|q| + L dq/dt over A_eff = A_closed + (A_open - A_closed) zeta;
-// the leaflets open at (1 - zeta) K_vo dp for dp > 0 and close at zeta K_vc dp for dp < 0.
+// the leaflets open at (1 - zeta) K_vo (dp - dp_open) above dp_open and close at
+// zeta K_vc (dp - dp_close) below dp_close.
 void CirculationModel::valve(const ValveCoefficients& c, double dp, double q, double zeta, double& dq,
                              double& dzeta) {
   const double z = std::clamp(zeta, 0.0, 1.0);
@@ -44,14 +45,16 @@ void CirculationModel::valve(const ValveCoefficients& c, double dp, double q, do
   const double bernoulli = c.bernoulli_factor / (area * area);
   const double inertance = c.inertance_factor / area;
   dq = (dp - bernoulli * q * std::fabs(q)) / inertance;
-  dzeta = dp > 0.0 ? (1.0 - z) * c.k_open * dp : z * c.k_close * dp;
+  if (dp > c.dp_open) dzeta = (1.0 - z) * c.k_open * (dp - c.dp_open);
+  else if (dp < c.dp_close) dzeta = z * c.k_close * (dp - c.dp_close);
+  else dzeta = 0.0;
 }
 
 void CirculationModel::outputs(const CirculationState& x, double t, ModelOutputs& o) const {
   const double swing = respiration_->swing(respiration_->phase(t));
   const double fall = respiration_->depth_mmhg() * swing;  // pleural fall below end-expiration
   const double pt = respiration_->end_expiratory_mmhg() - fall;
-  const double lung_factor = 1.0 / (1.0 + p_.lung_capacitance_gain * swing);
+  const double lung_factor = 1.0 / (1.0 + p_.lung_capacitance_per_mmhg * fall);
   for (int c = 0; c < 4; ++c) o.activation[c] = activation_->activation(c, t);
   const double vpcd = x[kVlv] + x[kVrv] - p_.pericardium_v0_ml;
   o.p_pericardium = p_.pericardium_p0_mmhg * (std::exp(p_.pericardium_lambda_per_ml * vpcd) - 1.0);

@@ -46,7 +46,7 @@ class CirculationModel {
   struct ValveCoefficients {
     double bernoulli_factor;  // rho / (2 * 1333.22): B = factor / A^2, mmHg s^2 cm^4 / mL^2
     double inertance_factor;  // rho * l / 1333.22: L = factor / A, mmHg s^2 cm^2 / mL
-    double area_open_cm2, area_closed_cm2, k_open, k_close;
+    double area_open_cm2, area_closed_cm2, k_open, k_close, dp_open, dp_close;
   };
   static ValveCoefficients coefficients(const ValveParams& v, double density);
   static void valve(const ValveCoefficients& c, double dp, double q, double zeta, double& dq, double& dzeta);

@@ -12,8 +12,10 @@ namespace {
 // 1333.22 dyn/cm^2.
 constexpr double kDynPerMmhg = 1333.22;
 
-ValveParams valve(double area_cm2, double length_cm, double k_open_cgs, double k_close_cgs) {
+ValveParams valve(double area_cm2, double length_cm, double k_open_cgs, double k_close_cgs,
+                  double close_threshold_mmhg) {
   ValveParams v;
+  v.close_threshold_mmhg = close_threshold_mmhg;
   v.annulus_area_cm2 = area_cm2;
   v.effective_length_cm = length_cm;
   v.k_open_per_mmhg_s = k_open_cgs * kDynPerMmhg;
@@ -35,6 +37,8 @@ void check_valve(const std::string& name, const ValveParams& v) {
   check_positive(name + ".k_close_per_mmhg_s", v.k_close_per_mmhg_s);
   check_in_range(name + ".max_open_fraction", v.max_open_fraction, 0.05, 1.0);
   check_in_range(name + ".min_open_fraction", v.min_open_fraction, 1e-6, 0.5 * v.max_open_fraction);
+  check_in_range(name + ".open_threshold_mmhg", v.open_threshold_mmhg, -5.0, 5.0);
+  check_in_range(name + ".close_threshold_mmhg", v.close_threshold_mmhg, -10.0, v.open_threshold_mmhg);
 }
 
 void check_compliance(const std::string& name, const ComplianceParams& c) {
@@ -50,18 +54,19 @@ CirculationParams default_circulation_params() {
   // CHECK_VALUES ranges; orders of magnitude as in Smith et al. 2004 and Mynard et al. 2012.
   p.lv = {2.6, 5.0, 0.45, 0.025};
   p.rv = {0.65, 10.0, 0.55, 0.024};
-  p.la = {0.30, 4.0, 0.80, 0.050};
-  p.ra = {0.25, 4.0, 0.80, 0.050};
+  p.la = {0.55, 4.0, 0.80, 0.050};
+  p.ra = {0.45, 4.0, 0.80, 0.050};
   // Valves: normal adult areas (mitral 4-6, tricuspid 7-9, aortic 3-4, pulmonic 3-4 cm^2, common
   // practice); leaflet rate coefficients of the order of Mynard et al. 2012 (from memory).
-  p.mitral = valve(5.0, 2.0, 0.02, 0.02);
-  p.tricuspid = valve(7.0, 2.0, 0.02, 0.02);
-  p.aortic = valve(3.5, 1.5, 0.012, 0.012);
-  p.pulmonic = valve(3.5, 1.5, 0.012, 0.012);
+  // The AV leaflets ignore the small reverse gradients of diastasis and close with systole.
+  p.mitral = valve(5.0, 2.0, 0.02, 0.02, -2.0);
+  p.tricuspid = valve(7.0, 2.0, 0.02, 0.02, -2.0);
+  p.aortic = valve(3.5, 1.5, 0.012, 0.012, 0.0);
+  p.pulmonic = valve(3.5, 1.5, 0.012, 0.012, 0.0);
   p.aorta = {0.35, 100.0};
   p.systemic_arteries = {1.2, 600.0};
   p.systemic_veins = {100.0, 2550.0};
-  p.thoracic_veins = {15.0, 150.0};
+  p.thoracic_veins = {8.0, 150.0};
   p.pulmonary_artery = {1.2, 50.0};
   p.lung_arteries = {3.0, 100.0};
   p.pulmonary_veins = {10.0, 200.0};
@@ -98,7 +103,7 @@ void check_circulation_params(const CirculationParams& p) {
   check_positive("pulmonary_venous_resistance_mmhg_s_per_ml", p.pulmonary_venous_resistance_mmhg_s_per_ml);
   check_in_range("thorax_end_expiratory_mmhg", p.thorax_end_expiratory_mmhg, -20.0, 10.0);
   check_in_range("abdominal_pressure_per_pleural", p.abdominal_pressure_per_pleural, 0.0, 2.0);
-  check_in_range("lung_capacitance_gain", p.lung_capacitance_gain, 0.0, 1.0);
+  check_in_range("lung_capacitance_per_mmhg", p.lung_capacitance_per_mmhg, 0.0, 0.5);
   check_in_range("blood_volume_ml", p.blood_volume_ml, 2000.0, 9000.0);
   check_in_range("blood_density_g_per_cm3", p.blood_density_g_per_cm3, 1.0, 1.1);
   const ActivationTiming& t = p.timing;
@@ -113,6 +118,8 @@ void check_circulation_params(const CirculationParams& p) {
   check_in_range("timing.hill_m2", t.hill_m2, 5.0, 60.0);
   check_in_range("timing.lv_duration_scale", t.lv_duration_scale, 0.5, 2.0);
   check_in_range("timing.rv_duration_scale", t.rv_duration_scale, 0.5, 2.0);
+  check_in_range("timing.lv_preload_duration_exponent", t.lv_preload_duration_exponent, 0.0, 3.0);
+  check_in_range("timing.rv_preload_duration_exponent", t.rv_preload_duration_exponent, 0.0, 3.0);
   check_in_range("timing.atrial_rise_s", t.atrial_rise_s, 0.01, 0.3);
   check_in_range("timing.atrial_fall_s", t.atrial_fall_s, 0.01, 0.3);
 }

@@ -24,6 +24,10 @@ struct ValveParams {
   double k_close_per_mmhg_s = 0;       // leaflet closing rate coefficient
   double max_open_fraction = 1.0;      // M_st: < 1 models stenosis
   double min_open_fraction = 1e-4;     // M_rg: leak area when closed; > ~0.01 models regurgitation
+  // Pressure thresholds of leaflet motion (Mynard et al. 2012): opening above open_threshold,
+  // closing below close_threshold (<= open_threshold), still in between.
+  double open_threshold_mmhg = 0.0;
+  double close_threshold_mmhg = 0.0;
 };
 
 // A linear compliance: P_transmural = (V - unstressed) / compliance.
@@ -40,13 +44,24 @@ struct ComplianceParams {
 // Atria: a raised-cosine pulse (Heldt, Shim, Kamm & Mark 2002, J Appl Physiol 92:1239).
 struct ActivationTiming {
   double lv_electromechanical_delay_s = 0.040;  // Q to the onset of LV elastance rise
-  double rv_extra_delay_s = 0.005;              // RV mechanical onset after LV at zero lv_rv_delay
+  double rv_extra_delay_s = 0.015;              // RV mechanical onset after LV at zero lv_rv_delay
   double atrial_electromechanical_delay_s = 0.070;  // P onset to atrial contraction
   double ventricular_period_base_s = 0.35, ventricular_period_slope = 0.55;
   double hill_tau1_fraction = 0.269, hill_tau2_fraction = 0.452;
   double hill_m1 = 1.32, hill_m2 = 20.0;
-  double lv_duration_scale = 1.0, rv_duration_scale = 1.0;  // state effects (failure, exercise)
+  // RV contraction is shorter than the LV one (its ejection still lasts longer: low pulmonary
+  // impedance); states multiply both scales (failure, exercise).
+  double lv_duration_scale = 1.0, rv_duration_scale = 0.96;
   double atrial_rise_s = 0.090, atrial_fall_s = 0.100;
+  // Preload-dependent prolongation of contraction, which the elastance model lacks: at a given
+  // heart rate, ejection lasts longer when more blood is ejected (Weissler, Peeler & Roehll 1961,
+  // Am Heart J 62:367, from memory). Each beat's ventricular durations are scaled by
+  // (V / V_mean)^exponent, V the ventricular volume just before its contraction and V_mean
+  // a running mean over about one breath; the factor is clamped to [0.85, 1.2]. Failing
+  // myocardium has a blunted Frank-Starling response (Schwinger et al. 1994, Circ Res 74:959,
+  // from memory), so the failure states lower the exponent of the failing ventricle.
+  double lv_preload_duration_exponent = 0.8;
+  double rv_preload_duration_exponent = 0.8;
 };
 
 struct CirculationParams {
@@ -77,8 +92,8 @@ struct CirculationParams {
   // the descending diaphragm raises abdominal pressure on the systemic veins (abdominal pump),
   // and lung inflation raises pulmonary arterial capacitance, lengthening the pulmonary hangout
   // interval (the mechanism of inspiratory P2 delay, Curtiss et al. 1975, Circulation 51:157).
-  double abdominal_pressure_per_pleural = 0.6;   // mmHg abdominal rise per mmHg pleural fall
-  double lung_capacitance_gain = 0.3;            // relative compliance rise at full inspiration
+  double abdominal_pressure_per_pleural = 1.0;   // mmHg abdominal rise per mmHg pleural fall
+  double lung_capacitance_per_mmhg = 0.0;       // relative compliance rise per mmHg of pleural fall
   double blood_volume_ml = 5000.0;
   double blood_density_g_per_cm3 = 1.06;
   ActivationTiming timing;

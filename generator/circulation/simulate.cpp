@@ -112,6 +112,8 @@ EngineRun run_engine(const SubjectSpec& subject, const IntegratorSettings& setti
 
   run.recording_start_state = run_in(e, subject, settings, context, run.run_in_beats, r.ode_steps, r.rhs_evaluations);
 
+  run.steady_lv_volume_ml = run.recording_start_state[kVlv];
+  run.steady_rv_volume_ml = run.recording_start_state[kVrv];
   const CirculationModel model(e.circulation, &run.activation, &run.rhythm.respiration);
   Integrator integ(model, run.recording_start_state, run.recording_start_s, settings, subject.record_id, context);
   HemodynamicSeries& s = r.series;
@@ -121,8 +123,42 @@ EngineRun run_engine(const SubjectSpec& subject, const IntegratorSettings& setti
   reserve(s, n_samples);
   CirculationState previous = integ.state(), x;
   ModelOutputs o;
+  // Beats whose contraction is still ahead get their preload-dependent durations once the
+  // integration passes their trigger: Q, or earlier if a ventricle contracts before Q.
+  const double lv_exponent = e.circulation.timing.lv_preload_duration_exponent;
+  const double rv_exponent = e.circulation.timing.rv_preload_duration_exponent;
+  std::size_t next_adapt = 0;
+  double lv_factor = 1.0, rv_factor = 1.0;
+  double lv_mean = run.steady_lv_volume_ml, rv_mean = run.steady_rv_volume_ml;
+  const auto trigger = [&](std::size_t n) {
+    const double first_onset = std::min(run.activation.pulses[kLv][n].onset_s, run.activation.pulses[kRv][n].onset_s);
+    return std::min(run.rhythm.lv_activation_s[n], first_onset - 2.0 * settings.max_step_s);
+  };
+  while (next_adapt < run.rhythm.lv_activation_s.size() &&
+         (next_adapt == 0 || trigger(next_adapt) <= run.recording_start_s))
+    ++next_adapt;
   integ.advance_to(series_end, [&](double t_prev, double t_now) {
     const CirculationState& now = integ.state();
+    while (next_adapt < run.rhythm.lv_activation_s.size() && trigger(next_adapt) <= t_now) {
+      integ.state_at(trigger(next_adapt), x);
+      // 70 % of the new preload effect, 30 % of the previous beat's: this damps the period-2
+      // feedback (longer contraction -> shorter filling) that short diastoles would otherwise show.
+      // The coupling fades out below RR 0.75 s and is gone at 0.45 s, where short diastoles make
+      // the loop gain exceed one (beat-to-beat alternation) whatever the damping.
+      const double rr = run.rhythm.lv_activation_s[next_adapt] - run.rhythm.lv_activation_s[next_adapt - 1];
+      const double fade = std::clamp((rr - 0.45) / 0.30, 0.0, 1.0);
+      // The reference volume is a running mean over about one breath, so only beat-to-beat
+      // changes act (breathing also shifts the mean volumes away from the run-in values).
+      const double weight = std::clamp(rr / breath_s, 0.05, 1.0);
+      const auto factor = [&](double v, double k, double& v_mean, double& previous) {
+        previous = 0.3 * previous + 0.7 * std::clamp(std::pow(v / v_mean, k), 0.85, 1.2);
+        v_mean += weight * (v - v_mean);
+        return previous;
+      };
+      stretch_pulse(run.activation.pulses[kLv][next_adapt], factor(x[kVlv], fade * lv_exponent, lv_mean, lv_factor));
+      stretch_pulse(run.activation.pulses[kRv][next_adapt], factor(x[kVrv], fade * rv_exponent, rv_mean, rv_factor));
+      ++next_adapt;
+    }
     for (int i = 0; i < 4; ++i) {
       const double g0 = previous[kLeaflet[i]] - kLeafletOpenThreshold, g1 = now[kLeaflet[i]] - kLeafletOpenThreshold;
       if ((g0 > 0) == (g1 > 0) || t_now < series_begin) continue;

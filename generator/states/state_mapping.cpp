@@ -21,9 +21,10 @@ void apply_exercise(double x, EngineSetup& s, double hr_rest) {
   // Faster contraction and relaxation (lusitropy) shorten electromechanical systole.
   c.timing.lv_duration_scale *= 1.0 - 0.12 * x;
   c.timing.rv_duration_scale *= 1.0 - 0.12 * x;
-  // Metabolic vasodilation in working muscle: systemic resistance down to ~0.38x at peak;
+  // Metabolic vasodilation in working muscle: systemic resistance down to 0.37x at peak, most of
+  // the fall early (conductance rises linearly with intensity);
   // pulmonary vascular recruitment lowers PVR.
-  c.systemic_resistance_mmhg_s_per_ml *= 1.0 - 0.62 * x;
+  c.systemic_resistance_mmhg_s_per_ml /= 1.0 + 1.7 * x;
   c.pulmonary_resistance_mmhg_s_per_ml *= 1.0 - 0.35 * x;
   // Venoconstriction and the muscle pump: unstressed venous volume mobilised, venous return eased.
   c.systemic_veins.unstressed_ml -= 400.0 * x;
@@ -39,8 +40,9 @@ void apply_exercise(double x, EngineSetup& s, double hr_rest) {
 // prolonged and slowed contraction; neurohumoral compensation raises stressed volume, heart rate
 // and systemic resistance.
 void apply_ventricular_failure(double s, double weight, ChamberParams& v, double& duration_scale,
-                               double ees_loss, double remodel_ml) {
+                               double& preload_exponent, double ees_loss, double remodel_ml) {
   v.ees_mmhg_per_ml *= 1.0 - ees_loss * s * weight;
+  preload_exponent *= 1.0 - s * weight;  // blunted Frank-Starling response
   v.v0_ml += remodel_ml * s * weight;
   v.ed_b_per_ml *= 1.0 + 0.2 * s * weight;
   duration_scale *= 1.0 + 0.2 * s * weight;
@@ -91,18 +93,19 @@ EngineSetup map_subject_to_engine(const SubjectSpec& subject) {
       apply_exercise(subject.exercise_intensity, e, hr_rest);
       break;
     case State::lv_failure:
-      apply_ventricular_failure(s, 1.0, c.lv, c.timing.lv_duration_scale, 0.75, 60.0);
+      apply_ventricular_failure(s, 1.0, c.lv, c.timing.lv_duration_scale, c.timing.lv_preload_duration_exponent, 0.75, 60.0);
       c.pulmonary_resistance_mmhg_s_per_ml *= 1.0 + 0.5 * s;  // reactive pulmonary vasoconstriction
       apply_compensation(s, e, hr_rest, 0.25, 450.0, 0.3);
       break;
     case State::rv_failure:
-      apply_ventricular_failure(s, 1.0, c.rv, c.timing.rv_duration_scale, 0.7, 50.0);
-      c.pulmonary_resistance_mmhg_s_per_ml *= 1.0 + 0.8 * s;
-      apply_compensation(s, e, hr_rest, 0.2, 350.0, 0.15);
+      // Right heart failure most often follows pulmonary hypertension: PVR up to 5x.
+      apply_ventricular_failure(s, 1.0, c.rv, c.timing.rv_duration_scale, c.timing.rv_preload_duration_exponent, 0.45, 30.0);
+      c.pulmonary_resistance_mmhg_s_per_ml *= 1.0 + 4.0 * s;
+      apply_compensation(s, e, hr_rest, 0.2, 500.0, 0.15);
       break;
     case State::global_failure:
-      apply_ventricular_failure(s, 1.0, c.lv, c.timing.lv_duration_scale, 0.7, 50.0);
-      apply_ventricular_failure(s, 1.0, c.rv, c.timing.rv_duration_scale, 0.6, 40.0);
+      apply_ventricular_failure(s, 1.0, c.lv, c.timing.lv_duration_scale, c.timing.lv_preload_duration_exponent, 0.7, 50.0);
+      apply_ventricular_failure(s, 1.0, c.rv, c.timing.rv_duration_scale, c.timing.rv_preload_duration_exponent, 0.6, 40.0);
       apply_compensation(s, e, hr_rest, 0.3, 500.0, 0.3);
       break;
   }
