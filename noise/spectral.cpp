@@ -81,11 +81,4 @@ double mean_power(const float* x, std::size_t n) {
   return sum / static_cast<double>(n);
 }
 
-void scale_to_power(std::vector<float>& x, double target_power) {
-  double p = mean_power(x.data(), x.size());
-  if (p <= 0) return;
-  const float gain = static_cast<float>(std::sqrt(target_power / p));
-  for (float& v : x) v *= gain;
-}
-
 }  // namespace stethogen::noise

@@ -24,7 +24,4 @@ std::vector<float> shaped_gaussian(RandomStream& rng, const std::vector<double>&
 // Mean of x^2.
 double mean_power(const float* x, std::size_t n);
 
-// Scales x so its mean power is target_power (no-op for an all-zero x).
-void scale_to_power(std::vector<float>& x, double target_power);
-
 }  // namespace stethogen::noise

@@ -128,6 +128,21 @@ TEST_CASE("adding a process leaves the others' draws unchanged; sites share room
   auto out = c.run();
   // Shared power fraction site_coherence = 0.9 gives a correlation near 0.9 (definition).
   CHECK(correlation(noise_at(out, c.clean, 0), noise_at(out, c.clean, 1)) == Approx(0.9).margin(0.03));
+  // No shared part: the local fields of two sites are uncorrelated (SD 1/sqrt(N) for white
+  // noise, common practice; pink noise is correlated over longer spans, so allow 0.05).
+  room.ambient.site_coherence = 0;
+  Case local = make_case(room, 0, 20, 4);
+  auto out_local = local.run();
+  for (std::size_t s = 1; s < 4; ++s)
+    CHECK(std::abs(correlation(noise_at(out_local, local.clean, 0), noise_at(out_local, local.clean, s))) < 0.05);
+  noise::NoiseProfile hum;
+  hum.hum.enabled = true;
+  Case h = make_case(hum, 0, 10, 2);
+  auto out_h = h.run();
+  // One mains supply: the same waveform at every site with per-site phase offsets within
+  // +-0.1 rad (h x that at harmonic h). Worst case for 4 harmonics 6 dB apart:
+  // sum P_h cos(0.2 h) / sum P_h = 0.958.
+  CHECK(correlation(noise_at(out_h, h.clean, 0), noise_at(out_h, h.clean, 1)) > 0.95);
   noise::NoiseProfile sensor;
   sensor.sensor_white.enabled = true;
   Case d = make_case(sensor, 0, 20, 2);
