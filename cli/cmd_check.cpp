@@ -35,7 +35,7 @@ struct MinMax {
   std::string str(std::string_view unit) const {
     std::string u = unit.empty() ? "" : " " + std::string(unit);
     if (lo == hi) return fmt::format("{:.4g}{}", lo, u);
-    return fmt::format("{:.4g} .. {:.4g}{}", lo, hi, u);
+    return fmt::format("{:.4g}..{:.4g}{}", lo, hi, u);
   }
 };
 
@@ -89,6 +89,10 @@ int run_check(const std::string& path) {
 
   double total_s = 0, total_bytes = 0;
   const double bytes_per_site_sample = 2.0 * sample_bytes(ds.sample_format) + 1.0;  // pcg, clean, label
+  std::size_t width = 10;
+  for (const recipe::PopulationSpec& pop : r.populations) width = std::max(width, pop.name.size());
+  fmt::print("{:<{}}  {:<14}  {:>7}  {:<14}  {:<16}  {:<18}  {}\n", "population", width, "state",
+             "records", "grade", "duration_s", "snr_db", "noise");
   std::uint64_t index = 0;
   for (const recipe::PopulationSpec& pop : r.populations) {
     std::map<recipe::Param, MinMax> ranges;
@@ -103,14 +107,27 @@ int run_check(const std::string& path) {
       total_bytes += std::round(s.params.duration_s * ds.sample_rate_hz) *
                      static_cast<double>(ds.sites.size()) * bytes_per_site_sample;
     }
-    fmt::print("population {}{}: {}, {} record{}\n", pop.name,
-               pop.sweep.empty() ? "" : " (sweep " + pop.sweep + ")", name(pop.state), pop.count,
-               pop.count == 1 ? "" : "s");
-    for (const auto& [p, mm] : ranges)
-      fmt::print("  {:<26}{}\n", recipe::info(p).key, mm.str(recipe::info(p).unit));
+    // The columns: grade (intensity or severity), duration, SNR and noise; then the rest.
+    auto take = [&](recipe::Param p, const char* prefix = "") -> std::string {
+      auto it = ranges.find(p);
+      if (it == ranges.end()) return "-";
+      std::string text = prefix + it->second.str(recipe::info(p).unit);
+      ranges.erase(it);
+      return text;
+    };
+    std::string grade = take(recipe::Param::intensity, "i ");
+    if (grade == "-") grade = take(recipe::Param::severity, "sev ");
+    std::string duration = take(recipe::Param::duration_s);
+    std::string snr = take(recipe::Param::snr_db);
     std::string noise;
     for (const auto& [n, c] : noise_counts) noise += fmt::format("{}{} ({})", noise.empty() ? "" : ", ", n, c);
-    fmt::print("  {:<26}{}\n", "noise", noise.empty() ? "none" : noise);
+    fmt::print("{:<{}}  {:<14}  {:>7}  {:<14}  {:<16}  {:<18}  {}\n", pop.name, width, name(pop.state),
+               pop.count, grade, duration, snr, noise.empty() ? "-" : noise);
+    std::string others;
+    for (const auto& [p, mm] : ranges)
+      others += fmt::format("{}{} {}", others.empty() ? "" : "; ", recipe::info(p).key,
+                            mm.str(recipe::info(p).unit));
+    if (!others.empty()) fmt::print("{:<{}}  {}\n", "", width, others);
   }
   fmt::print("\ntotal: {} populations, {} records, {:.3g} hours of audio, estimated output {} "
              "uncompressed (pcg, pcg_clean and labels)\n",
