@@ -113,19 +113,23 @@ std::vector<double> pick_peaks(const std::vector<double>& env, double threshold,
   return peaks;
 }
 
-// Heart period in frames: the autocorrelation maximum over 0.3-2.0 s (200-30 bpm).
+// Heart period in frames: over 0.3-2.0 s (200-30 bpm), the shortest lag whose autocorrelation
+// comes within 85 % of the maximum, so that a multiple of the period does not win.
 double heart_period(const std::vector<double>& env, double hop_s) {
   auto lo = static_cast<std::size_t>(0.3 / hop_s), hi = static_cast<std::size_t>(2.0 / hop_s);
   hi = std::min(hi, env.size() / 2);
-  double best = -1e300;
-  std::size_t best_lag = 0;
+  if (hi <= lo) return 0;
+  std::vector<double> r(hi + 1, 0.0);
   for (std::size_t lag = lo; lag <= hi; ++lag) {
-    double r = 0;
-    for (std::size_t k = 0; k + lag < env.size(); ++k) r += env[k] * env[k + lag];
-    r /= static_cast<double>(env.size() - lag);
-    if (r > best) best = r, best_lag = lag;
+    for (std::size_t k = 0; k + lag < env.size(); ++k) r[lag] += env[k] * env[k + lag];
+    r[lag] /= static_cast<double>(env.size() - lag);
   }
-  return static_cast<double>(best_lag);
+  double best = *std::max_element(r.begin() + static_cast<std::ptrdiff_t>(lo), r.end());
+  for (std::size_t lag = lo; lag <= hi; ++lag) {
+    bool local_max = (lag == lo || r[lag] >= r[lag - 1]) && (lag == hi || r[lag] >= r[lag + 1]);
+    if (local_max && r[lag] >= 0.85 * best) return static_cast<double>(lag);
+  }
+  return 0;
 }
 
 }  // namespace
@@ -148,9 +152,14 @@ std::vector<DetectedSound> detect_heart_sounds(const float* samples, std::size_t
   double expected_systole = std::clamp(0.546 - 0.0021 * heart_rate_bpm - 0.075, 0.12, 0.50) / o.hop_s;
 
   // Two-means clustering of the plausible peak-to-peak intervals.
-  std::vector<double> intervals;
-  for (std::size_t k = 0; k + 1 < peaks.size(); ++k) intervals.push_back(peaks[k + 1] - peaks[k]);
-  double c_short = 0.35 * period, c_long = 0.65 * period;
+  std::vector<double> intervals, plausible;
+  for (std::size_t k = 0; k + 1 < peaks.size(); ++k) {
+    intervals.push_back(peaks[k + 1] - peaks[k]);
+    if (intervals.back() >= 0.1 * period && intervals.back() <= 0.9 * period) plausible.push_back(intervals.back());
+  }
+  if (plausible.size() < 2) return {};
+  std::sort(plausible.begin(), plausible.end());
+  double c_short = plausible[plausible.size() / 4], c_long = plausible[3 * plausible.size() / 4];
   for (int iteration = 0; iteration < 20; ++iteration) {
     double s_sum = 0, l_sum = 0;
     int s_n = 0, l_n = 0;

@@ -114,7 +114,7 @@ class Parser {
         if (line.find(delimiter) != std::string::npos)
           throw InputError(SourceLocation{file_, number, 1}, "header",
                            fmt::format("'{}' looks {}-separated: detections files are comma-separated",
-                                       trim(line), delimiter == '\t' ? "tab" : std::string(1, delimiter)));
+                                       trim(line), delimiter == '\t' ? "tab" : fmt::format("'{}'", delimiter)));
       }
     }
     std::vector<std::string> all = kEventColumns;
