@@ -108,7 +108,18 @@ ProfileMap parse_noise_profiles(const Fields& f, const toml::table& doc, int sam
     f.identifier(name, key.source(), path + " (profile name)");
     auto profile = std::make_shared<noise::NoiseProfile>(
         noise::parse_noise_profile(*value.as_table(), path, f.file()));
-    f.located(value, [&] { noise::validate_for_rate(*profile, sample_rate_hz, path); });
+    try {
+      noise::validate_for_rate(*profile, sample_rate_hz, path);
+    } catch (const InputError& e) {
+      // The message names "<path>.<process>.<key>": point at that process's table if present.
+      std::string_view rest = std::string_view(e.what()).substr(0, std::string_view(e.what()).find(' '));
+      const toml::node* at = &value;
+      if (rest.size() > path.size() + 1 && rest.substr(0, path.size() + 1) == path + ".") {
+        rest.remove_prefix(path.size() + 1);
+        if (auto n = value.as_table()->get(rest.substr(0, rest.find('.')))) at = n;
+      }
+      f.fail(*at, e.what());
+    }
     profiles.emplace(name, std::move(profile));
   }
   return profiles;
@@ -146,6 +157,11 @@ Recipe parse_recipe(std::string_view text, const std::string& source_name) {
   r.dataset = detail::parse_dataset(f, doc);
   r.noise_profiles = detail::parse_noise_profiles(f, doc, r.dataset.sample_rate_hz);
   r.populations = detail::parse_populations(f, doc, r.noise_profiles);
+  std::uint64_t first = 0;
+  for (const PopulationSpec& p : r.populations) {
+    r.first_record.push_back(first);
+    first += p.count;
+  }
   return r;
 }
 

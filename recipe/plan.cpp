@@ -1,5 +1,6 @@
 #include "recipe/plan.hpp"
 
+#include <algorithm>
 #include <stdexcept>
 
 #include <fmt/format.h>
@@ -22,6 +23,9 @@ double draw(const Recipe& recipe, std::uint64_t record_index, Param p, const Dis
 }  // namespace
 
 std::uint64_t record_count(const Recipe& recipe) {
+  const auto& first = recipe.first_record;
+  if (!first.empty() && first.size() == recipe.populations.size())
+    return first.back() + recipe.populations.back().count;
   std::uint64_t n = 0;
   for (const PopulationSpec& p : recipe.populations) n += p.count;
   return n;
@@ -30,13 +34,20 @@ std::uint64_t record_count(const Recipe& recipe) {
 std::string record_id(std::uint64_t record_index) { return fmt::format("r{:06d}", record_index); }
 
 std::size_t population_of(const Recipe& recipe, std::uint64_t record_index) {
-  std::uint64_t first = 0;
-  for (std::size_t i = 0; i < recipe.populations.size(); ++i) {
-    first += recipe.populations[i].count;
-    if (record_index < first) return i;
+  const std::uint64_t total = record_count(recipe);
+  if (record_index >= total)
+    throw std::out_of_range(fmt::format("record index {} is past the end of the plan ({} records)",
+                                        record_index, total));
+  const auto& first = recipe.first_record;
+  if (first.size() == recipe.populations.size()) {
+    // The last population starting at or before record_index (counts are >= 1).
+    auto it = std::upper_bound(first.begin(), first.end(), record_index);
+    return static_cast<std::size_t>(it - first.begin()) - 1;
   }
-  throw std::out_of_range(fmt::format("record index {} is past the end of the plan ({} records)",
-                                      record_index, first));
+  std::uint64_t end = 0;
+  std::size_t i = 0;
+  while (record_index >= (end += recipe.populations[i].count)) ++i;
+  return i;
 }
 
 SubjectSpec plan_record(const Recipe& recipe, std::uint64_t record_index) {

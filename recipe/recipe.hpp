@@ -59,6 +59,9 @@ struct Recipe {
   std::string sha256_hex;  // of text
   DatasetSpec dataset;
   std::vector<PopulationSpec> populations;  // [[population]] in order, then each [[sweep]]'s grid points
+  // Index of each population's first record (filled by parsing; lets the plan find a record's
+  // population by binary search). Left empty, the plan counts from the start.
+  std::vector<std::uint64_t> first_record;
   std::map<std::string, std::shared_ptr<const noise::NoiseProfile>> noise_profiles;
 };
 

@@ -171,3 +171,15 @@ TEST_CASE("planned draws follow their distributions", "[plan]") {
   CHECK(double(snr10) / n == Approx(0.5).margin(5 * std::sqrt(0.25 / n)));
   CHECK(double(noise_b) / n == Approx(0.75).margin(5 * std::sqrt(0.75 * 0.25 / n)));
 }
+
+TEST_CASE("a recipe built in code, without the first-record index, plans the same", "[plan]") {
+  Recipe parsed = parse_recipe(kMixed, "mix.toml");
+  Recipe built = parsed;
+  built.first_record.clear();
+  REQUIRE(record_count(built) == record_count(parsed));
+  for (std::uint64_t i = 0; i < record_count(parsed); ++i) {
+    REQUIRE(population_of(built, i) == population_of(parsed, i));
+    require_same(plan_record(built, i), plan_record(parsed, i));
+  }
+  CHECK_THROWS_AS(population_of(built, record_count(built)), std::out_of_range);
+}
