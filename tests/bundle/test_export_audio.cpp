@@ -45,7 +45,7 @@ print("ok", len(x))
 std::vector<float> test_signal(std::size_t n) {
   RandomStream rng(3, 0, 1);
   std::vector<float> x(n);
-  for (std::size_t k = 0; k < n; ++k) x[k] = static_cast<float>(0.9 * std::sin(0.01 * k) + 0.05 * rng.normal());
+  for (std::size_t k = 0; k < n; ++k) x[k] = static_cast<float>(0.7 * std::sin(0.01 * k) + 0.05 * rng.normal());
   x[10] = 1.0f;    // exactly full scale: clipped to the largest positive integer
   x[11] = -1.0f;   // exactly negative full scale: representable
   x[12] = 2.5f;    // beyond: clipped

@@ -5,6 +5,7 @@
 #include <array>
 #include <cmath>
 #include <cstdio>
+#include <stdexcept>
 
 #include <fmt/format.h>
 
@@ -106,6 +107,16 @@ ProcessResult generate_bundle(const ScratchDir& dir, const std::string& name, co
   const fs::path recipe = dir / (name + ".toml");
   std::ofstream(recipe) << recipe_text;
   return run_stethogen({"generate", recipe.string(), "-o", (dir / (name + ".h5")).string(), "--quiet"});
+}
+
+const fs::path& shared_tiny_bundle() {
+  static ScratchDir dir("shared");
+  static const fs::path path = [] {
+    ProcessResult r = generate_bundle(dir, "tiny", tiny_recipe());
+    if (r.exit_code != 0) throw std::runtime_error("generating the shared test bundle failed: " + r.output);
+    return dir / "tiny.h5";
+  }();
+  return path;
 }
 
 void write_raw_f32(const fs::path& path, const std::vector<float>& values) {

@@ -50,6 +50,9 @@ ProcessResult run_stethogen(const std::vector<std::string>& args);
 // Writes recipe text to dir/name.toml and generates dir/name.h5; the result of generate.
 ProcessResult generate_bundle(const ScratchDir& dir, const std::string& name, const std::string& recipe_text);
 
+// The tiny bundle, generated once per test process (read-only: copy it before modifying).
+const std::filesystem::path& shared_tiny_bundle();
+
 // Writes floats as raw little-endian float32 (numpy.fromfile(path, '<f4') reads them).
 void write_raw_f32(const std::filesystem::path& path, const std::vector<float>& values);
 
