@@ -224,6 +224,8 @@ std::vector<PopulationSpec> parse_populations(const Fields& f, const toml::table
     for (std::size_t i = 0; i < pops->size(); ++i) {
       const std::string path = fmt::format("population[{}]", i);
       const toml::table& t = *(*pops)[i].as_table();
+      if (auto g = t.get("grid"))
+        f.fail(*g, path + ".grid: only a [[sweep]] takes a grid (write this population as a [[sweep]])");
       f.reject_unknown_keys(t, path, pop_keys);
       PopulationSpec p;
       const toml::node* name = t.get("name");
@@ -236,6 +238,7 @@ std::vector<PopulationSpec> parse_populations(const Fields& f, const toml::table
       out.push_back(std::move(p));
     }
   }
+  std::map<std::string, std::string> sweep_names;  // name -> key path
   if (auto sweeps = array_of_tables(f, doc, "sweep")) {
     for (std::size_t i = 0; i < sweeps->size(); ++i) {
       const std::string path = fmt::format("sweep[{}]", i);
@@ -246,6 +249,9 @@ std::vector<PopulationSpec> parse_populations(const Fields& f, const toml::table
       if (!name) f.fail(t, path + ".name: missing (the prefix of the generated population names)");
       base.name = f.identifier(*name, path + ".name");
       base.sweep = base.name;
+      if (!sweep_names.emplace(base.name, path).second)
+        f.fail(*name, fmt::format("{}.name = \"{}\": sweep name already used by {}", path, base.name,
+                                  sweep_names.at(base.name)));
       read_body(f, t, path, base, profiles);
       std::vector<Axis> axes = read_grid(f, t, path, profiles);
       check_state_keys(f, t, path, base.state, t.get("grid")->as_table());

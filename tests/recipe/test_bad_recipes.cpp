@@ -94,6 +94,8 @@ const std::vector<BadRecipe> kCorpus = {
     {"sweep_axis_also_in_base", "9:29: sweep[0].grid.snr_db: also set as sweep[0].snr_db: set it in one place"},
     {"sweep_axis_duplicate_value", "8:28: sweep[0].grid.intensity[1] = 0.2: listed twice"},
     {"sweep_axis_out_of_range", "8:28: sweep[0].grid.intensity[1] = 1.5: must be within [0, 1]"},
+    {"sweep_duplicate_name", R"(11:8: sweep[1].name = "s": sweep name already used by sweep[0])"},
+    {"population_with_grid", "8:8: population[0].grid: only a [[sweep]] takes a grid"},
     {"sweep_severity_on_rest", R"(8:21: sweep[0].severity: only for the failure states lv_failure, rv_failure, global_failure (this state is "rest"))"},
     // noise profile references
     {"noise_unknown_profile", R"(11:9: population[0].noise = "wardd": no such noise profile (did you mean 'ward'?); defined: ward)"},
