@@ -127,6 +127,7 @@ std::vector<double> Fields::weights(const toml::node& node, const std::string& p
     sum += w.back();
   }
   if (!(sum > 0)) fail(node, fmt::format("{}: weights sum to 0: at least one must be > 0", path));
+  if (!std::isfinite(sum)) fail(node, fmt::format("{}: weights sum to infinity: use smaller weights", path));
   return w;
 }
 
