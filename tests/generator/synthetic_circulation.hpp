@@ -2,7 +2,9 @@
 // levels the tests set, so the source laws can be checked against known inputs.
 #pragma once
 
+#include <algorithm>
 #include <cmath>
+#include <tuple>
 
 #include "generator/hemodynamics.hpp"
 
@@ -23,7 +25,7 @@ inline double ramp(double t, double t0, double t1, double v0, double v1) {
   return v0 + (v1 - v0) * (t - t0) / (t1 - t0);
 }
 
-// Beats at 0, 1, 2 s (plus one before), record window [0, 2), series rate 2 kHz.
+// Beats at -1, 0, 1, 2 s, record window [0, 2), series rate 2 kHz.
 inline gen::CirculationResult synthetic_circulation(const SyntheticBeatShape& shape) {
   gen::CirculationResult r;
   r.duration_s = 2.0;
@@ -47,23 +49,25 @@ inline gen::CirculationResult synthetic_circulation(const SyntheticBeatShape& sh
     double t = abs_t - q;
     double lv = 5.0;
     if (t >= mc && t < ao) lv = 5.0 + shape.lv_rise_mmhg_s * (t - mc);
-    else if (t >= ao && t < ac) lv = 110.0;
+    else if (t >= ao && t < ac) lv = std::min(lv_open + 300.0 * (t - ao), 110.0);
     else if (t >= ac) lv = ramp(t, ac, mo, 90.0, 3.0);
     // Atrial filling raises LV pressure just before activation (t in [0.91, 1)).
     if (t >= 1.0 + atrial_rise_start) lv = 3.0 + shape.atrial_lv_rise_mmhg_s * (t - (1.0 + atrial_rise_start));
     s.p_lv[k] = lv;
     s.p_la[k] = 4.0;
-    s.p_ao[k] = t < ac ? (t < ao ? 80.0 : 112.0) : ramp(t, ac, 1.0, shape.aortic_close_mmhg, 80.0);
+    s.p_ao[k] = t < ao ? 80.0 : (t < ac ? ramp(t, ao, ac, lv_open, shape.aortic_close_mmhg)
+                                        : ramp(t, ac, 1.0, shape.aortic_close_mmhg, 80.0));
     double rv = 2.0;
     if (t >= tc && t < po) rv = 2.0 + shape.rv_rise_mmhg_s * (t - tc);
-    else if (t >= po && t < pc) rv = 24.0;
+    else if (t >= po && t < pc) rv = std::min(rv_open + 300.0 * (t - po), 24.0);
     else if (t >= pc) rv = ramp(t, pc, mo, 15.0, 1.0);
     s.p_rv[k] = rv;
     s.p_ra[k] = 1.5;
-    s.p_pa[k] = t < pc ? 20.0 : ramp(t, pc, 1.0, shape.pa_close_mmhg, 8.0);
+    s.p_pa[k] = t < po ? rv_open : (t < pc ? ramp(t, po, pc, rv_open, shape.pa_close_mmhg)
+                                           : ramp(t, pc, 1.0, shape.pa_close_mmhg, 8.0));
     s.q_mitral[k] = t < mo ? 0.0 : (t < e_peak ? ramp(t, mo, e_peak, 0.0, e_amp) : ramp(t, e_peak, e_end, e_amp, 0.0));
   }
-  for (int b = 0; b < 3; ++b) {
+  for (int b = 0; b < 4; ++b) {
     gen::BeatHemodynamics beat;
     beat.beat = b;
     double q = b - 1.0;

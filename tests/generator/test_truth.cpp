@@ -1,0 +1,87 @@
+// Truth definitions: envelope timing, four-state labels, the record window rule.
+#include <catch2/catch.hpp>
+
+#include <cmath>
+
+#include "generator/sources/heart_sounds.hpp"
+#include "generator/transmission/render.hpp"
+#include "generator/truth/labels.hpp"
+#include "generator/truth/record_truth.hpp"
+#include "synthetic_circulation.hpp"
+
+using namespace stethogen;
+using namespace stethogen::gen;
+
+TEST_CASE("sampled envelope timing agrees with the closed form", "[truth]") {
+  SoundComponent c;
+  c.start_s = 0.1;
+  c.amplitude = 2.0;
+  c.tau_s = 0.009;
+  c.f_start_hz = c.f_end_hz = 60;
+  const double fs = 1000;
+  std::vector<double> env(300);
+  for (std::size_t i = 0; i < env.size(); ++i) env[i] = c.envelope(i / fs);
+  SoundTiming t = measure_envelope(env.data(), env.size(), 0.0, fs, kEnvelopeThreshold);
+  // Linear interpolation of a smooth envelope at 1 kHz: within a quarter sample.
+  REQUIRE(t.onset_s == Approx(c.onset_s()).margin(0.25 / fs));
+  REQUIRE(t.peak_s == Approx(c.peak_s()).margin(0.25 / fs));
+  REQUIRE(t.offset_s == Approx(c.offset_s()).margin(0.25 / fs));
+  REQUIRE(t.peak_envelope == Approx(2.0).epsilon(1e-3));
+}
+
+TEST_CASE("four-state labels follow S1 and S2 intervals", "[truth]") {
+  std::vector<std::uint8_t> labels(20);
+  // At 10 Hz: S2 [-0.5,-0.3), S1 [0.2, 0.4), S2 [0.9, 1.1), S1 [1.5, 1.7).
+  label_states({{true, 0.2, 0.4}, {false, -0.5, -0.3}, {false, 0.9, 1.1}, {true, 1.5, 1.7}}, 10.0, labels.data(),
+               labels.size());
+  const std::uint8_t expected[20] = {4, 4, 1, 1, 2, 2, 2, 2, 2, 3, 3, 4, 4, 4, 4, 1, 1, 0, 0, 0};
+  for (int i = 0; i < 20; ++i) {
+    INFO("sample " << i);
+    REQUIRE(labels[i] == expected[i]);
+  }
+  // Two S1 in a row: the gap between them is undefined.
+  label_states({{true, 0.0, 0.2}, {true, 0.5, 0.7}}, 10.0, labels.data(), 10);
+  REQUIRE(labels[3] == 0);
+  // Overlap: the later sound takes over at its onset.
+  label_states({{true, 0.0, 0.5}, {false, 0.3, 0.6}}, 10.0, labels.data(), 10);
+  REQUIRE(labels[2] == 1);
+  REQUIRE(labels[3] == 3);
+}
+
+TEST_CASE("only events and beats inside the record window are kept; labels cover it", "[truth]") {
+  CirculationResult circ = test::synthetic_circulation({});
+  auto components = heart_sound_sources(circ, SourceVariation{});
+  auto groups = group_components(components);
+  SubjectSpec subject;
+  subject.sample_rate_hz = 2000;
+  subject.sites = {Site::aortic, Site::mitral};
+  TransmissionPlan plan = plan_transmission(subject);
+  const std::size_t n = 4000;
+  Rendering r = render_sites(components, groups, plan, n);
+  Truth truth = build_truth({circ, components, groups, r, 2000, n});
+
+  REQUIRE(truth.beats.size() == 2);  // activations at 0 and 1 s
+  REQUIRE(truth.beats[0].beat == 0);
+  REQUIRE(truth.beats[0].activation_s == 0.0);
+  int s1_heart = 0, per_site = 0;
+  for (const Event& e : truth.events) {
+    REQUIRE(e.onset_s >= 0);
+    REQUIRE(e.offset_s < 2.0);
+    REQUIRE(e.onset_index == std::llround(e.onset_s * 2000));
+    REQUIRE(e.onset_s <= e.peak_s);
+    REQUIRE(e.peak_s <= e.offset_s);
+    s1_heart += e.kind == EventKind::S1 && e.site == -1;
+    per_site += e.site >= 0;
+  }
+  REQUIRE(s1_heart == 2);
+  REQUIRE(per_site > 0);
+  for (std::size_t s = 0; s < 2; ++s)
+    for (std::size_t i = 0; i < n; ++i) {
+      INFO("site " << s << " sample " << i);
+      REQUIRE(truth.states.at(s, i) != 0);
+    }
+  // The A2-P2 split is the onset difference at the heart level (P2 closes 30 ms after A2 here).
+  REQUIRE(truth.beats[0].a2p2_split_ms > 20);
+  REQUIRE(truth.beats[0].a2p2_split_ms < 40);
+  REQUIRE(truth.beats[0].s1_amplitude > truth.beats[0].s2_amplitude * 0.5);
+}
