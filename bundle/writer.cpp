@@ -275,7 +275,7 @@ void BundleWriter::finish() {
     h5::check_status(H5Fflush(m.file, H5F_SCOPE_GLOBAL), "flush");
     if (!m.file.reset()) throw RuntimeFailure("close: " + h5::error_reason());
     m.open = false;
-    fsync_file(m.temp);
+    if (m.options.durable) fsync_file(m.temp);
   } catch (const RuntimeFailure& e) {
     m.close_and_remove();
     throw RuntimeFailure(fmt::format("{}: {} (nothing written to {})", m.temp.string(), e.what(), m.target.string()));

@@ -20,6 +20,9 @@ struct WriterOptions {
   // Replace an existing target on finish(). Without it the constructor refuses an existing
   // target (InputError) and finish() re-checks before renaming.
   bool overwrite = false;
+  // Flush the file to disk before the rename (off for a run's scratch files, which only need
+  // to survive the process, not a power cut).
+  bool durable = true;
 };
 
 class BundleWriter {

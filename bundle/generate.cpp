@@ -1,0 +1,393 @@
+#include "bundle/generate.hpp"
+
+#include <algorithm>
+#include <atomic>
+#include <condition_variable>
+#include <csignal>
+#include <fstream>
+#include <map>
+#include <mutex>
+#include <regex>
+#include <thread>
+
+#include <fmt/format.h>
+#include <nlohmann/json.hpp>
+
+#include "bundle/merge.hpp"
+#include "bundle/reader.hpp"
+#include "bundle/writer.hpp"
+#include "core/error.hpp"
+#include "generator/pipeline.hpp"
+#include "recipe/plan.hpp"
+#include "recipe/recipe.hpp"
+
+namespace stethogen::bundle {
+
+namespace fs = std::filesystem;
+
+namespace {
+
+std::atomic<int> g_signal{0};
+
+extern "C" void on_stop_signal(int sig) {
+  g_signal.store(sig);
+  // A second signal ends the process at once.
+  std::signal(sig, SIG_DFL);
+}
+
+// Installs the stop handlers for the run's lifetime; ignores SIGXFSZ so a file-size limit is a
+// write error (reported) instead of a silent kill.
+class SignalScope {
+ public:
+  SignalScope() {
+    g_signal.store(0);
+    old_int_ = std::signal(SIGINT, on_stop_signal);
+    old_term_ = std::signal(SIGTERM, on_stop_signal);
+    old_xfsz_ = std::signal(SIGXFSZ, SIG_IGN);
+  }
+  ~SignalScope() {
+    std::signal(SIGINT, old_int_);
+    std::signal(SIGTERM, old_term_);
+    std::signal(SIGXFSZ, old_xfsz_);
+  }
+
+ private:
+  void (*old_int_)(int);
+  void (*old_term_)(int);
+  void (*old_xfsz_)(int);
+};
+
+// Each finished record (or skipped-record note) is a one-record bundle in the run directory,
+// renamed into place when complete. One record per file keeps every record's HDF5 layout
+// independent of its neighbours, so the assembled bundle has the same bytes whatever the
+// thread count, shard split or interruptions.
+std::string scratch_name(std::uint64_t index) { return fmt::format("rec-{:012}.h5", index); }
+
+// Index of the first record of the range without a scratch file; removes partial files.
+std::uint64_t scan_scratch(const fs::path& workdir, const RecordRange& range) {
+  static const std::regex pattern(R"(rec-(\d{12})\.h5)");
+  std::vector<std::uint64_t> done;
+  for (const auto& entry : fs::directory_iterator(workdir)) {
+    const std::string name = entry.path().filename().string();
+    std::smatch m;
+    if (std::regex_match(name, m, pattern)) done.push_back(std::stoull(m[1]));
+    else if (name.ends_with(".partial")) fs::remove(entry.path());
+  }
+  std::sort(done.begin(), done.end());
+  std::uint64_t next = range.begin;
+  for (std::uint64_t i : done) {
+    if (i != next) break;
+    ++next;
+  }
+  // Anything past a gap would be rewritten anyway.
+  for (std::uint64_t i : done)
+    if (i >= next) fs::remove(workdir / scratch_name(i));
+  return std::min(next, range.end);
+}
+
+struct Manifest {
+  std::string recipe_sha256;
+  std::uint32_t shard_index = 0, shard_count = 1;
+  std::uint64_t begin = 0, end = 0;
+};
+
+void write_manifest(const fs::path& workdir, const Manifest& m) {
+  nlohmann::json j = {{"recipe_sha256", m.recipe_sha256}, {"shard_index", m.shard_index},
+                      {"shard_count", m.shard_count}, {"record_begin", m.begin}, {"record_end", m.end}};
+  std::ofstream out(workdir / "run.json");
+  out << j.dump(2) << "\n";
+  if (!out) throw RuntimeFailure(fmt::format("{}: cannot write the run manifest", (workdir / "run.json").string()));
+}
+
+Manifest read_manifest(const fs::path& workdir) {
+  std::ifstream in(workdir / "run.json");
+  try {
+    nlohmann::json j = nlohmann::json::parse(in);
+    return {j.at("recipe_sha256").get<std::string>(), j.at("shard_index").get<std::uint32_t>(),
+            j.at("shard_count").get<std::uint32_t>(), j.at("record_begin").get<std::uint64_t>(),
+            j.at("record_end").get<std::uint64_t>()};
+  } catch (const std::exception& e) {
+    throw InputError(fmt::format("{}: unreadable run manifest ({}); pass --force to start over",
+                                 (workdir / "run.json").string(), e.what()));
+  }
+}
+
+// A failing record under on_record_error = "stop".
+struct StopOnFailure : RuntimeFailure {
+  using RuntimeFailure::RuntimeFailure;
+};
+
+// One synthesised record or the reason it failed.
+struct Outcome {
+  std::optional<Record> record;
+  std::string record_id;
+  std::string failure;
+};
+
+// Synthesises records [begin, end) on worker threads; take(i) hands them to the single writer in
+// index order. At most `window` records are held at once, so memory is flat in the record count.
+class RecordPipeline {
+ public:
+  RecordPipeline(const recipe::Recipe& recipe, RecordRange todo, unsigned threads,
+                 std::function<Record(const SubjectSpec&)> synthesize)
+      : recipe_(recipe), synthesize_(std::move(synthesize)), next_dispatch_(todo.begin), end_(todo.end),
+        window_(2 * threads) {
+    for (unsigned t = 0; t < threads; ++t) workers_.emplace_back([this] { work(); });
+  }
+  ~RecordPipeline() { stop_and_join(); }
+
+  // The outcome of record i, or nullopt once stopping and i was never started.
+  std::optional<Outcome> take(std::uint64_t i) {
+    std::unique_lock lock(mu_);
+    // Timed waits: a signal sets g_signal without notifying.
+    while (!done_cv_.wait_for(lock, std::chrono::milliseconds(100), [&] {
+      return results_.count(i) || ((stopping_ || g_signal) && i >= next_dispatch_);
+    })) {
+    }
+    auto it = results_.find(i);
+    if (it == results_.end()) return std::nullopt;
+    Outcome out = std::move(it->second);
+    results_.erase(it);
+    next_write_ = i + 1;
+    space_cv_.notify_all();
+    return out;
+  }
+
+  // Stop dispatching; records in flight still finish.
+  void stop() {
+    std::lock_guard lock(mu_);
+    stopping_ = true;
+    space_cv_.notify_all();
+    done_cv_.notify_all();
+  }
+
+  void stop_and_join() {
+    stop();
+    for (std::thread& t : workers_)
+      if (t.joinable()) t.join();
+  }
+
+ private:
+  void work() {
+    while (true) {
+      std::uint64_t i = 0;
+      {
+        std::unique_lock lock(mu_);
+        space_cv_.wait_for(lock, std::chrono::milliseconds(100), [&] {
+          return stopping_ || g_signal || next_dispatch_ >= end_ || next_dispatch_ < next_write_ + window_;
+        });
+        if (stopping_ || g_signal || next_dispatch_ >= end_) {
+          done_cv_.notify_all();
+          return;
+        }
+        if (next_dispatch_ >= next_write_ + window_) continue;
+        i = next_dispatch_++;
+      }
+      Outcome out;
+      out.record_id = recipe::record_id(i);
+      try {
+        SubjectSpec subject = recipe::plan_record(recipe_, i);
+        out.record_id = subject.record_id;
+        out.record = synthesize_(subject);
+      } catch (const RecordFailure& e) {
+        out.failure = e.what();
+      } catch (const std::exception& e) {
+        out.failure = e.what();
+      }
+      std::lock_guard lock(mu_);
+      results_.emplace(i, std::move(out));
+      done_cv_.notify_all();
+    }
+  }
+
+  const recipe::Recipe& recipe_;
+  std::function<Record(const SubjectSpec&)> synthesize_;
+  std::mutex mu_;
+  std::condition_variable done_cv_, space_cv_;
+  std::map<std::uint64_t, Outcome> results_;
+  std::uint64_t next_dispatch_, end_, next_write_ = 0;
+  std::uint64_t window_;
+  bool stopping_ = false;
+  std::vector<std::thread> workers_;
+};
+
+BundleAttributes run_attributes(const recipe::Recipe& recipe, const Shard& shard) {
+  BundleAttributes a;
+  a.recipe_toml = recipe.text;
+  a.recipe_sha256 = recipe.sha256_hex;
+  a.seed = recipe.dataset.seed;
+  a.record_count = recipe::record_count(recipe);
+  a.sample_format = recipe.dataset.sample_format;
+  if (!shard.whole()) {
+    a.shard_index = static_cast<std::int32_t>(shard.index);
+    a.shard_count = static_cast<std::int32_t>(shard.count);
+  }
+  return a;
+}
+
+std::string resume_hint(const GenerateOptions& o, const fs::path& output) {
+  std::string cmd = fmt::format("stethogen generate {} -o {}", o.recipe.string(), output.string());
+  if (!o.shard.whole() && o.shard.source == "--shard") cmd += fmt::format(" --shard {}/{}", o.shard.index + 1, o.shard.count);
+  return cmd + " --resume";
+}
+
+}  // namespace
+
+fs::path shard_output_path(const fs::path& path, const Shard& shard, bool explicit_path) {
+  std::string p = path.string();
+  if (auto pos = p.find("{shard}"); pos != std::string::npos) return p.replace(pos, 7, shard.tag());
+  if (shard.whole()) return path;
+  if (explicit_path && shard.source == "--shard") return path;
+  if (explicit_path)
+    throw InputError(fmt::format("-o {}: every task of the array would write this file; put {{shard}} in the name "
+                                 "(e.g. -o part-{{shard}}.h5)", p));
+  fs::path out = path;
+  out.replace_extension(fmt::format(".shard-{}{}", shard.tag(), path.extension().string()));
+  return out;
+}
+
+GenerateResult generate(const GenerateOptions& options) {
+  recipe::Recipe recipe = recipe::load_recipe(options.recipe.string());
+  const std::uint64_t total = recipe::record_count(recipe);
+  const RecordRange range = shard_range(options.shard, total);
+  const fs::path output = shard_output_path(options.output ? *options.output : fs::path(recipe.dataset.output),
+                                            options.shard, options.output.has_value());
+  const fs::path workdir = output.string() + ".partial";
+  const BundleAttributes attributes = run_attributes(recipe, options.shard);
+  const bool skip_failures = recipe.dataset.on_record_error == FailurePolicy::skip;
+
+  if (fs::exists(output) && !options.force)
+    throw InputError(fmt::format("{}: output exists; pass --force to replace it", output.string()));
+  if (output.has_parent_path() && !fs::is_directory(output.parent_path()))
+    throw InputError(fmt::format("{}: directory {} does not exist", output.string(), output.parent_path().string()));
+
+  const Manifest manifest{recipe.sha256_hex, options.shard.index, options.shard.count, range.begin, range.end};
+  std::uint64_t next = range.begin;
+  if (fs::exists(workdir)) {
+    if (!fs::is_directory(workdir))
+      throw InputError(fmt::format("{}: exists and is not a run directory; remove it", workdir.string()));
+    if (options.resume) {
+      Manifest old = read_manifest(workdir);
+      if (old.recipe_sha256 != manifest.recipe_sha256)
+        throw InputError(fmt::format("--resume: {} changed since the interrupted run (recipe_sha256 {} then, {} now); "
+                                     "pass --force without --resume to start over",
+                                     options.recipe.string(), old.recipe_sha256, manifest.recipe_sha256));
+      if (old.shard_index != manifest.shard_index || old.shard_count != manifest.shard_count ||
+          old.begin != manifest.begin || old.end != manifest.end)
+        throw InputError(fmt::format("--resume: the interrupted run in {} was shard {}/{}, this is {}/{}",
+                                     workdir.string(), old.shard_index + 1, old.shard_count,
+                                     manifest.shard_index + 1, manifest.shard_count));
+      next = scan_scratch(workdir, range);
+    } else if (options.force) {
+      fs::remove_all(workdir);
+    } else {
+      throw InputError(fmt::format("{}: an interrupted run is here; pass --resume to continue it, or --force to "
+                                   "discard it and start over", workdir.string()));
+    }
+  }
+  fs::create_directories(workdir);
+  write_manifest(workdir, manifest);
+
+  Progress progress(options.progress, range.size(), next - range.begin);
+  if (options.resume)
+    progress.note(next > range.begin ? fmt::format("generate: resuming at record {} ({} of {} already done)", next,
+                                                   next - range.begin, range.size())
+                                     : "generate: nothing to resume; starting from the first record");
+
+  GenerateResult result;
+  result.output = output;
+  SignalScope signals;
+  unsigned threads = options.threads ? options.threads : std::max(1u, std::thread::hardware_concurrency());
+  auto synthesize = options.synthesize ? options.synthesize
+                                       : [](const SubjectSpec& s) { return gen::synthesize_record(s); };
+  RecordPipeline pipeline(recipe, {next, range.end}, threads, synthesize);
+
+  // The single writer: one scratch bundle per record, in record order.
+  auto write = [&](std::uint64_t i, const Outcome& out) {
+    WriterOptions wo;
+    wo.temp_path = workdir / (scratch_name(i) + ".partial");
+    wo.overwrite = true;
+    wo.durable = false;
+    BundleWriter writer(workdir / scratch_name(i), attributes, wo);
+    if (out.record) writer.write_record(*out.record);
+    else writer.add_skipped({out.record_id, i, out.failure});
+    writer.finish();
+  };
+
+  std::uint64_t i = next;
+  try {
+    for (; i < range.end; ++i) {
+      std::optional<Outcome> out = pipeline.take(i);
+      if (!out) break;  // interrupted: nothing more in flight
+      if (!out->failure.empty()) {
+        if (!skip_failures)
+          throw StopOnFailure(fmt::format(
+              "record {} failed: {}\nstopped (dataset.on_record_error = \"stop\"); the {} records before it are kept "
+              "in {}. Set on_record_error = \"skip\" to leave failing records out (then start over with --force).",
+              out->record_id, out->failure, i - range.begin, workdir.string()));
+        progress.note(fmt::format("generate: skipped record {}: {}", out->record_id, out->failure));
+      }
+      write(i, *out);
+      if (out->record) {
+        ++result.records_written;
+        const Record& r = *out->record;
+        progress.advance(r.sample_rate_hz > 0 ? double(r.pcg.n_samples) / r.sample_rate_hz : 0);
+      } else {
+        ++result.records_skipped;
+        progress.advance(0);
+      }
+    }
+  } catch (const StopOnFailure&) {
+    pipeline.stop_and_join();
+    progress.finish();
+    throw;
+  } catch (const RuntimeFailure& e) {
+    pipeline.stop_and_join();
+    progress.finish();
+    throw RuntimeFailure(fmt::format("{}\nno output written; completed records are kept in {}: fix the cause and "
+                                     "run `{}`", e.what(), workdir.string(), resume_hint(options, output)));
+  }
+  pipeline.stop_and_join();
+
+  if (i < range.end) {
+    progress.finish();
+    result.interrupted = true;
+    fmt::print(stderr, "generate: interrupted by signal {}: {} of {} records are saved in {}\n"
+               "generate: to continue, run `{}`\n", g_signal.load(), i - range.begin, range.size(),
+               workdir.string(), resume_hint(options, output));
+    return result;
+  }
+
+  // Assemble the final bundle from the scratch files, in record order.
+  std::vector<fs::path> parts;
+  for (std::uint64_t k = range.begin; k < range.end; ++k) parts.push_back(workdir / scratch_name(k));
+  MergeSpec spec;
+  spec.expect = range;
+  spec.shard = options.shard;
+  spec.overwrite = options.force;
+  spec.temp_path = workdir / "bundle.h5.partial";
+  try {
+    if (parts.empty()) {
+      WriterOptions wo;
+      wo.overwrite = options.force;
+      wo.temp_path = spec.temp_path;
+      BundleWriter empty(output, attributes, wo);
+      empty.finish();
+    } else {
+      merge_bundles(parts, output, spec);
+    }
+  } catch (const RuntimeFailure& e) {
+    progress.finish();
+    throw RuntimeFailure(fmt::format("{}\nno output written; the completed records are kept in {}: free space and "
+                                     "run `{}`", e.what(), workdir.string(), resume_hint(options, output)));
+  }
+  fs::remove_all(workdir);
+  progress.finish();
+  // Counts over the whole run, including records of an earlier interrupted part.
+  BundleReader done(output);
+  result.records_written = done.index().size();
+  result.records_skipped = done.skipped().size();
+  return result;
+}
+
+}  // namespace stethogen::bundle
