@@ -176,3 +176,23 @@ TEST_CASE("the Python example reads a record, its labels and events", "[export]"
       stethogen::test::shell_quote(script) + " " + stethogen::test::shell_quote(bundle.string()) + " --record r9");
   CHECK(missing.exit_code == 1);
 }
+
+TEST_CASE("int16-stored bundles verify and export within half an LSB", "[export]") {
+  stethogen::test::ScratchDir dir("export-int16");
+  std::string recipe = stethogen::test::tiny_recipe();
+  const std::string sensor_line = "sensor = \"electronic\"\n";
+  recipe.replace(recipe.find(sensor_line), sensor_line.size(), sensor_line + "sample_format = \"int16\"\n");
+  ProcessResult gen = stethogen::test::generate_bundle(dir, "int16", recipe);
+  INFO(gen.output);
+  REQUIRE(gen.exit_code == 0);
+  const std::string bundle = (dir / "int16.h5").string();
+  ProcessResult verified = stethogen::test::run_stethogen({"verify", bundle, "--sample", "2", "--quiet"});
+  INFO(verified.output);
+  CHECK(verified.exit_code == 0);
+  const fs::path out = dir / "wav";
+  REQUIRE(stethogen::test::run_stethogen({"export", bundle, "--format", "wav", "--out", out.string()}).exit_code == 0);
+  ProcessResult py = stethogen::test::run_python(dir, "audio.py", kCompareAudio, {bundle, out.string(), "wav", "16", "pcg"});
+  INFO(py.output);
+  CHECK(py.exit_code == 0);
+  CHECK(py.output == "8\n");
+}

@@ -26,7 +26,7 @@ TEST_CASE("state runs cover every sample exactly once", "[export]") {
   CHECK(run_length_encode(labels.data(), 0).empty());
 }
 
-TEST_CASE("CSV numbers are the shortest exact decimal; fields are quoted when needed", "[export]") {
+TEST_CASE("CSV numbers are the shortest exact decimal and fields are quoted when needed", "[export]") {
   // Round trip through the C library's strtod: the printed decimal reads back to the same double.
   for (double v : {0.1, 1.0 / 3.0, 1e-300, 12345.678901234567, -0.0, 2.5e-7}) CHECK(std::strtod(csv_number(v).c_str(), nullptr) == v);
   CHECK(csv_number(std::numeric_limits<double>::quiet_NaN()) == "nan");
