@@ -13,10 +13,18 @@ namespace {
 
 // FFTW's planner is not thread-safe, executing a plan on new arrays is: plans are made once
 // per length under a lock and kept for the life of the process.
+struct PlanCache {
+  std::mutex mutex;
+  std::map<std::size_t, fftw_plan> plans;
+  ~PlanCache() {
+    for (auto& [n, plan] : plans) fftw_destroy_plan(plan);
+  }
+};
+
 fftw_plan c2r_plan(std::size_t n) {
-  static std::mutex mutex;
-  static std::map<std::size_t, fftw_plan> plans;
-  std::lock_guard lock(mutex);
+  static PlanCache cache;
+  std::lock_guard lock(cache.mutex);
+  auto& plans = cache.plans;
   auto it = plans.find(n);
   if (it != plans.end()) return it->second;
   fftw_complex* in = fftw_alloc_complex(n / 2 + 1);
