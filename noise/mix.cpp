@@ -18,25 +18,47 @@ namespace {
 
 double db_to_amplitude(double db) { return std::pow(10.0, db / 20.0); }
 
-struct Part {
-  Contribution contribution;
-  double amplitude = 1;  // relative level of the process, before the SNR scale
+// An event of an additive process whose level is known once the SNR scale is.
+struct PendingEvent {
+  std::string kind;
+  Burst burst;
+  double unscaled_power = 0;  // over the burst, at the process's relative level
 };
 
-std::vector<Part> generate_additive(const ProcessContext& ctx, const NoiseProfile& p, const NoiseInputs& in,
-                                    const std::function<double(double)>& resp_phase) {
-  std::vector<Part> parts;
-  if (p.sensor_white.enabled) parts.push_back({sensor_noise(ctx), db_to_amplitude(p.sensor_white.level_db)});
-  if (p.ambient.enabled) parts.push_back({ambient_noise(ctx, p.ambient), db_to_amplitude(p.ambient.level_db)});
-  if (p.breath.enabled)
-    parts.push_back({breath_noise(ctx, p.breath, resp_phase, in.inspiration_fraction), db_to_amplitude(p.breath.level_db)});
-  if (p.friction.enabled) parts.push_back({friction_noise(ctx, p.friction), db_to_amplitude(p.friction.level_db)});
-  if (p.motion.enabled && !p.motion.clip)
-    parts.push_back({motion_noise(ctx, p.motion), db_to_amplitude(p.motion.level_db)});
-  if (p.hum.enabled) parts.push_back({hum_noise(ctx, p.hum), db_to_amplitude(p.hum.level_db)});
+// The additive processes summed at their relative levels, each freed once added.
+struct Background {
+  SiteArray<float> total;
+  std::vector<PendingEvent> events;
+  std::vector<std::string> stationary;
+  SiteArray<float> sensor;  // the sensor self-noise at its relative level (for dropouts)
+  bool has_sensor = false;
+
+  void add(Contribution c, double level_db) {
+    const float a = static_cast<float>(db_to_amplitude(level_db));
+    for (std::size_t i = 0; i < c.samples.data.size(); ++i) total.data[i] += a * c.samples.data[i];
+    if (c.stationary) stationary.push_back(c.label);
+    for (const Burst& b : c.bursts)
+      events.push_back({c.label, b, a * a * mean_power(c.samples.row(b.site) + b.onset, b.offset - b.onset)});
+    if (c.label == "sensor_white") {
+      for (float& v : c.samples.data) v *= a;
+      sensor = std::move(c.samples);
+      has_sensor = true;
+    }
+  }
+};
+
+Background generate_additive(const ProcessContext& ctx, const NoiseProfile& p, const NoiseInputs& in,
+                             const std::function<double(double)>& resp_phase) {
+  Background bg{SiteArray<float>(ctx.sites.size(), ctx.n_samples), {}, {}, {}, false};
+  if (p.sensor_white.enabled) bg.add(sensor_noise(ctx), p.sensor_white.level_db);
+  if (p.ambient.enabled) bg.add(ambient_noise(ctx, p.ambient), p.ambient.level_db);
+  if (p.breath.enabled) bg.add(breath_noise(ctx, p.breath, resp_phase, in.inspiration_fraction), p.breath.level_db);
+  if (p.friction.enabled) bg.add(friction_noise(ctx, p.friction), p.friction.level_db);
+  if (p.motion.enabled && !p.motion.clip) bg.add(motion_noise(ctx, p.motion), p.motion.level_db);
+  if (p.hum.enabled) bg.add(hum_noise(ctx, p.hum), p.hum.level_db);
   for (std::size_t i = 0; i < p.recordings.size(); ++i)
-    parts.push_back({recording_noise(ctx, p.recordings[i], i), db_to_amplitude(p.recordings[i].level_db)});
-  return parts;
+    bg.add(recording_noise(ctx, p.recordings[i], i), p.recordings[i].level_db);
+  return bg;
 }
 
 // Artifact level: power over the event relative to the mean clean power at that site.
@@ -83,13 +105,8 @@ NoiseOutput add_noise(const NoiseInputs& in) {
       in.resp_phase ? in.resp_phase : [breaths_per_s](double t) { return std::fmod(t * breaths_per_s, 1.0); };
 
   // The additive background, summed at relative levels, then one scale for the SNR.
-  std::vector<Part> parts = generate_additive(ctx, profile, in, resp_phase);
-  SiteArray<float> total(clean.n_sites, n);
-  for (const Part& part : parts) {
-    const float a = static_cast<float>(part.amplitude);
-    const auto& x = part.contribution.samples.data;
-    for (std::size_t i = 0; i < x.size(); ++i) total.data[i] += a * x[i];
-  }
+  Background bg = generate_additive(ctx, profile, in, resp_phase);
+  const SiteArray<float>& total = bg.total;
   const double raw_power = mean_power(total.data.data(), total.data.size());
   const double scale = raw_power > 0 ? std::sqrt(clean_power / (raw_power * std::pow(10.0, snr_db / 10.0))) : 0.0;
   double noise_energy = 0;
@@ -100,17 +117,10 @@ NoiseOutput add_noise(const NoiseInputs& in) {
   }
   out.snr_achieved_db = noise_energy > 0 ? 10.0 * std::log10(clean_power * total.data.size() / noise_energy)
                                          : std::numeric_limits<double>::infinity();
-
-  for (const Part& part : parts) {
-    const Contribution& c = part.contribution;
-    if (c.stationary) {
-      out.stationary.push_back(c.label);
-      continue;
-    }
-    for (const Burst& b : c.bursts)
-      out.artifacts.push_back({c.label, b.site, b.onset / ctx.sample_rate_hz, b.offset / ctx.sample_rate_hz,
-                               level_db(c.samples.row(b.site), b, scale * part.amplitude, site_reference(b.site))});
-  }
+  out.stationary = bg.stationary;
+  for (const PendingEvent& e : bg.events)
+    out.artifacts.push_back({e.kind, e.burst.site, e.burst.onset / ctx.sample_rate_hz, e.burst.offset / ctx.sample_rate_hz,
+                             10.0 * std::log10(scale * scale * e.unscaled_power / site_reference(e.burst.site))});
 
   // Motion strong enough to clip: set in sensor full-scale units, outside the SNR budget.
   if (profile.motion.enabled && profile.motion.clip) {
@@ -126,16 +136,9 @@ NoiseOutput add_noise(const NoiseInputs& in) {
   if (profile.dropout.enabled) {
     std::vector<Burst> intervals = dropout_intervals(ctx, profile.dropout);
     SiteArray<float> gain = dropout_gain(ctx, profile.dropout, intervals);
-    const Contribution* sensor = nullptr;
-    float sensor_scale = 0;
-    for (const Part& part : parts)
-      if (part.contribution.label == "sensor_white") {
-        sensor = &part.contribution;
-        sensor_scale = static_cast<float>(scale * part.amplitude);
-      }
     for (std::size_t i = 0; i < gain.data.size(); ++i) {
       if (gain.data[i] == 1.0f) continue;
-      float floor = sensor ? sensor_scale * sensor->samples.data[i] : 0.0f;
+      float floor = bg.has_sensor ? static_cast<float>(scale * bg.sensor.data[i]) : 0.0f;
       out.noisy.data[i] = gain.data[i] * (out.noisy.data[i] - floor) + floor;
     }
     for (const Burst& b : intervals)
