@@ -22,6 +22,9 @@ namespace {
 
 // Peak below this (about -120 dB full scale) counts as silent: it cannot be scaled to an SNR.
 constexpr double kSilentPeak = 1e-6;
+// Decoded files are held in memory for the whole run: refuse more than this many frames
+// (about 25 minutes at 44.1 kHz, 256 MB as float).
+constexpr sf_count_t kMaxFrames = sf_count_t{1} << 26;
 
 struct SndfileCloser {
   void operator()(SNDFILE* f) const { sf_close(f); }
@@ -46,24 +49,31 @@ RecordingAudio load_recording(const std::string& path) {
     throw InputError(fmt::format("noise file {} is not WAV, FLAC or OGG", path));
   if (info.frames <= 0 || info.channels <= 0) throw InputError(fmt::format("noise file {} is empty", path));
   if (info.samplerate <= 0) throw InputError(fmt::format("noise file {} has no valid sample rate", path));
-
-  std::vector<float> interleaved(static_cast<std::size_t>(info.frames) * info.channels);
-  sf_count_t got = sf_readf_float(file.get(), interleaved.data(), info.frames);
-  if (got <= 0) throw InputError(fmt::format("noise file {} could not be decoded: {}", path, sf_strerror(file.get())));
+  if (info.frames > kMaxFrames)
+    throw InputError(fmt::format("noise file {} is too long ({} frames; at most {}): cut it to a few minutes", path,
+                                 info.frames, kMaxFrames));
 
   RecordingAudio audio;
   audio.path = path;
   audio.sample_rate_hz = info.samplerate;
-  audio.samples.resize(static_cast<std::size_t>(got));
+  audio.samples.reserve(static_cast<std::size_t>(info.frames));
+  constexpr sf_count_t kChunkFrames = 4096;
+  std::vector<float> chunk(static_cast<std::size_t>(kChunkFrames) * info.channels);
   double peak = 0;
-  for (sf_count_t i = 0; i < got; ++i) {
-    double sum = 0;
-    for (int c = 0; c < info.channels; ++c) sum += interleaved[i * info.channels + c];
-    double v = sum / info.channels;
-    if (!std::isfinite(v)) throw InputError(fmt::format("noise file {} contains non-finite samples", path));
-    peak = std::max(peak, std::abs(v));
-    audio.samples[i] = static_cast<float>(v);
+  while (true) {
+    sf_count_t got = sf_readf_float(file.get(), chunk.data(), kChunkFrames);
+    if (got <= 0) break;
+    for (sf_count_t i = 0; i < got; ++i) {
+      double sum = 0;
+      for (int c = 0; c < info.channels; ++c) sum += chunk[i * info.channels + c];
+      double v = sum / info.channels;
+      if (!std::isfinite(v)) throw InputError(fmt::format("noise file {} contains non-finite samples", path));
+      peak = std::max(peak, std::abs(v));
+      audio.samples.push_back(static_cast<float>(v));
+    }
   }
+  if (audio.samples.empty())
+    throw InputError(fmt::format("noise file {} could not be decoded: {}", path, sf_strerror(file.get())));
   if (peak < kSilentPeak)
     throw InputError(fmt::format("noise file {} is silent (peak below -120 dB full scale)", path));
   audio.cache = std::make_shared<ResampleCache>();
