@@ -45,6 +45,22 @@ hum = { frequency_hz = 60, harmonics = 2 }
   CHECK(p.hum.level_db == HumNoise{}.level_db);
   CHECK_FALSE(p.breath.enabled);
   CHECK_FALSE(p.dropout.enabled);
+
+  auto q = parse(R"(
+[noise.clinic]
+sensor_white = { }
+breath = { enabled = false, corner_hz = 250 }
+[noise.clinic.friction]
+rate_per_min = 4
+duration_ms = [20, 80]
+)");
+  CHECK(q.sensor_white.enabled);
+  CHECK(q.sensor_white.level_db == SensorNoise{}.level_db);
+  CHECK_FALSE(q.breath.enabled);
+  CHECK(q.friction.enabled);
+  CHECK(q.friction.rate_per_min == 4);
+  CHECK(q.friction.duration_ms.lo == 20);
+  CHECK(q.friction.duration_ms.hi == 80);
 }
 
 TEST_CASE("bad values are refused with file, line, column, key, value and what is allowed") {
