@@ -35,14 +35,17 @@ class Reader {
     for (const auto& [key, node] : table_) {
       std::string k(key.str());
       if (std::find(allowed_.begin(), allowed_.end(), k) == allowed_.end())
-        fail(node, path_ + "." + k, "", "unknown key" + did_you_mean(k, allowed_) +
-                                            "; allowed: " + join(allowed_));
+        fail(key.source(), path_ + "." + k, "", "unknown key" + did_you_mean(k, allowed_) +
+                                                    "; allowed: " + join(allowed_));
     }
   }
 
   [[noreturn]] void fail(const toml::node& node, const std::string& key, const std::string& value,
                          const std::string& message) const {
-    const auto& src = node.source();
+    fail(node.source(), key, value, message);
+  }
+  [[noreturn]] void fail(const toml::source_region& src, const std::string& key, const std::string& value,
+                         const std::string& message) const {
     std::string where = SourceLocation{file_, src.begin.line, src.begin.column}.str();
     std::string text = where.empty() ? "" : where + ": ";
     text += value.empty() ? key + ": " + message : key + " = " + value + ": " + message;

@@ -67,7 +67,7 @@ TEST_CASE("bad values are refused with file, line, column, key, value and what i
   CHECK(error_of("[noise.clinic]\nhum = { frequency_hz = 55 }\n") ==
         "/tmp/recipe.toml:2:24: noise.clinic.hum.frequency_hz = 55: must be 50 or 60");
   CHECK_THAT(error_of("[noise.clinic]\nambient = { colr = \"pink\" }\n"),
-             Catch::Contains("noise.clinic.ambient.colr: unknown key (did you mean 'color'?)"));
+             Catch::Contains("2:13: noise.clinic.ambient.colr: unknown key (did you mean 'color'?)"));
   CHECK_THAT(error_of("[noise.clinic]\nfriction = { rate_per_min = -1 }\n"),
              Catch::Contains("2:29: noise.clinic.friction.rate_per_min = -1: must be >= 0"));
   CHECK_THAT(error_of("[noise.clinic]\nambient = { color = \"band\", band_hz = [400, 100] }\n"),
