@@ -63,8 +63,7 @@ std::vector<fs::path> export_targets(const BundleReader& reader, const ExportOpt
   return targets;
 }
 
-void write_index_csv(const fs::path& path, const std::vector<IndexRow>& rows) {
-  StagedTextFile file(path);
+void write_index_csv(StagedTextFile& file, const std::vector<IndexRow>& rows) {
   file.stream() << "record_id,record_index,population,state,exercise_intensity,severity,heart_rate_bpm,"
                    "cardiac_output_l_min,lv_ejection_fraction,rv_ejection_fraction,snr_db,snr_achieved_db,"
                    "duration_s,sample_rate_hz,n_samples,n_sites,n_beats,sensor,noise_profile\n";
@@ -76,7 +75,6 @@ void write_index_csv(const fs::path& path, const std::vector<IndexRow>& rows) {
                                  csv_number(r.rv_ejection_fraction), csv_number(r.snr_db),
                                  csv_number(r.snr_achieved_db), csv_number(r.duration_s), r.sample_rate_hz,
                                  r.n_samples, r.n_sites, r.n_beats, csv_field(r.sensor), csv_field(r.noise_profile));
-  file.close();
 }
 
 ExportReport export_bundle(const BundleReader& reader, const ExportOptions& options,
@@ -116,8 +114,13 @@ ExportReport export_bundle(const BundleReader& reader, const ExportOptions& opti
                  parts.artifacts ? &artifacts : nullptr});
       if (progress) progress(i + 1, ids.size());
     }
-    write_index_csv(options.out_dir / "index.csv", rows);
-    truth.close();
+    StagedTextFile index(options.out_dir / "index.csv");
+    write_index_csv(index, rows);
+    // All five complete before any appears.
+    index.finish();
+    truth.finish();
+    index.commit();
+    truth.commit();
     report.files = targets;
     return report;
   }
@@ -130,8 +133,13 @@ ExportReport export_bundle(const BundleReader& reader, const ExportOptions& opti
     for (std::size_t s = 0; s < sites.size() && s < pcg.n_sites; ++s) {
       const fs::path target = options.out_dir / audio_name(id, sites[s], options.format);
       StagedPath staged(target);
-      AudioWriteResult written = write_mono_audio(staged.temp_path(), pcg.row(s), pcg.n_samples, rate,
-                                                  container_of(options.format), options.encoding);
+      AudioWriteResult written;
+      try {
+        written = write_mono_audio(staged.temp_path(), pcg.row(s), pcg.n_samples, rate, container_of(options.format),
+                                   options.encoding);
+      } catch (const RuntimeFailure& e) {
+        throw RuntimeFailure(fmt::format("exporting {}: {}", target.string(), e.what()));
+      }
       staged.commit();
       report.files.push_back(target);
       report.clipped_samples += written.clipped_samples;

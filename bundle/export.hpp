@@ -14,6 +14,7 @@
 #include <vector>
 
 #include "bundle/export_audio.hpp"
+#include "bundle/export_files.hpp"
 #include "bundle/reader.hpp"
 
 namespace stethogen::bundle {
@@ -48,7 +49,8 @@ std::vector<std::filesystem::path> export_targets(const BundleReader& reader, co
 ExportReport export_bundle(const BundleReader& reader, const ExportOptions& options,
                            const std::function<void(std::size_t, std::size_t)>& progress = {});
 
-// index.csv: the /index table, one row per record id given (header = IndexRow field names).
-void write_index_csv(const std::filesystem::path& path, const std::vector<IndexRow>& rows);
+// index.csv: the /index table, one row per given row (header = IndexRow field names), written
+// into file (not finished or committed).
+void write_index_csv(StagedTextFile& file, const std::vector<IndexRow>& rows);
 
 }  // namespace stethogen::bundle

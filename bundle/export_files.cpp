@@ -41,13 +41,12 @@ StagedTextFile::StagedTextFile(fs::path final_path) : staged_(std::move(final_pa
   if (!out_) throw RuntimeFailure(fmt::format("cannot create {}", staged_.temp_path().string()));
 }
 
-void StagedTextFile::close() {
+void StagedTextFile::finish() {
   out_.flush();
   bool ok = static_cast<bool>(out_);
   out_.close();
   if (!ok || out_.fail())
     throw RuntimeFailure(fmt::format("writing {} failed (disk full or not writable?)", staged_.final_path().string()));
-  staged_.commit();
 }
 
 void check_not_overwriting(const std::vector<fs::path>& paths, bool force) {

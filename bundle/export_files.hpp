@@ -28,12 +28,19 @@ class StagedPath {
   bool committed_ = false;
 };
 
-// A text file written through a StagedPath; close() flushes, checks the stream and commits.
+// A text file written through a StagedPath. finish() flushes, checks and closes the stream
+// (throws RuntimeFailure on a write error); commit() renames it into place; close() does both.
+// Finishing a set of files before committing any keeps the set all-or-nothing on a full disk.
 class StagedTextFile {
  public:
   explicit StagedTextFile(std::filesystem::path final_path);
   std::ofstream& stream() { return out_; }
-  void close();
+  void finish();
+  void commit() { staged_.commit(); }
+  void close() {
+    finish();
+    commit();
+  }
 
  private:
   StagedPath staged_;

@@ -105,11 +105,18 @@ void TruthCsvWriter::add(const RecordTruth& t) {
                                          csv_number(a.onset_s), csv_number(a.offset_s), csv_number(a.level_db));
 }
 
-void TruthCsvWriter::close() {
-  events_.close();
-  states_.close();
-  beats_.close();
-  artifacts_.close();
+void TruthCsvWriter::finish() {
+  events_.finish();
+  states_.finish();
+  beats_.finish();
+  artifacts_.finish();
+}
+
+void TruthCsvWriter::commit() {
+  events_.commit();
+  states_.commit();
+  beats_.commit();
+  artifacts_.commit();
 }
 
 }  // namespace stethogen::bundle

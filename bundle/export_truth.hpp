@@ -50,8 +50,14 @@ class TruthCsvWriter {
   static std::vector<std::string> file_names();  // events.csv states.csv beats.csv artifacts.csv
   explicit TruthCsvWriter(const std::filesystem::path& dir);
   void add(const RecordTruth& truth);
-  // Flushes and renames every file into place; without close() nothing appears.
-  void close();
+  // Flushes and checks every file (throws RuntimeFailure on a write error), then commit()
+  // renames them all into place; without commit() nothing appears. close() does both.
+  void finish();
+  void commit();
+  void close() {
+    finish();
+    commit();
+  }
 
  private:
   StagedTextFile events_, states_, beats_, artifacts_;

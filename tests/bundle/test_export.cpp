@@ -196,3 +196,29 @@ TEST_CASE("int16-stored bundles verify and export within half an LSB", "[export]
   CHECK(py.exit_code == 0);
   CHECK(py.output == "8\n");
 }
+
+TEST_CASE("a full disk gives a clear error and no partial export files", "[export]") {
+  const fs::path bundle = stethogen::test::shared_tiny_bundle();
+  stethogen::test::ScratchDir dir("export-full");
+  // ulimit -f caps file size at 16 KiB, like a nearly full disk; SIGXFSZ ignored so writes fail
+  // with EFBIG instead of killing the process.
+  for (const char* format : {"csv", "wav"}) {
+    const fs::path out = dir / format;
+    const std::string command = "sh -c " + stethogen::test::shell_quote(
+        "trap '' XFSZ; ulimit -f 16; exec " + stethogen::test::shell_quote(stethogen::test::env_or("STETHOGEN_BINARY", "stethogen")) +
+        " export " + stethogen::test::shell_quote(bundle.string()) + " --format " + format + " --out " +
+        stethogen::test::shell_quote(out.string()));
+    ProcessResult r = stethogen::test::run_command(command);
+    INFO(format << ": " << r.output);
+    CHECK(r.exit_code == 1);
+    CHECK(contains(r.output, "error: "));
+    std::size_t leftovers = 0;
+    for (const auto& entry : fs::directory_iterator(out)) {
+      // Audio files completed before the limit are whole; nothing temporary or truncated remains.
+      CHECK_FALSE(contains(entry.path().filename().string(), ".tmp-"));
+      CHECK(std::string(format) == "wav");
+      ++leftovers;
+    }
+    if (std::string(format) == "csv") CHECK(leftovers == 0);
+  }
+}
