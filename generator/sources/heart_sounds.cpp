@@ -24,12 +24,14 @@ const SourceLaw& law_of(EventKind kind) {
 
 constexpr double kMinLoadMmhg = 1.0;        // keeps the pitch law finite for a near-empty chamber
 constexpr double kIsovolumicFallbackS = 0.08;  // if the semilunar opening is missing
-constexpr double kSemilunarLoadDelayS = 0.020;
+constexpr double kRelaxationSearchS = 0.20;     // AV reopening after a semilunar closure
 constexpr double kAvGuardS = 0.010;          // look this far before the AV closure for the steepest rise
 constexpr double kEarlyFillingSearchS = 0.20;  // E-wave peak within this of the AV opening
 constexpr double kDecelerationSearchS = 0.25;  // the E-wave's deceleration ends within this of its peak
 // P-wave onset to the atrial contraction: before it, a rising LV pressure is still passive filling.
 constexpr double kAtrialContractionDelayS = 0.06;
+// The A-wave may run past the Q wave (the ventricle contracts after its electromechanical delay).
+constexpr double kAtrialWaveAfterActivationS = 0.08;
 constexpr double kCrossoverSearchS = 0.15;     // ventricle-atrium crossover after activation
 
 bool finite(double t) { return std::isfinite(t); }
@@ -74,17 +76,21 @@ std::optional<SoundComponent> av_closure(EventKind kind, const BeatHemodynamics&
   return make_component(kind, b.beat, close, std::max(drive, 0.0), load, v);
 }
 
-// A2 or P2: the closed semilunar valve taking up the diastolic load.
+// A2 or P2: the closed semilunar valve taking up the diastolic load, the arterial pressure at
+// closure against the relaxed ventricle (its pressure when the AV valve reopens).
 std::optional<SoundComponent> semilunar_closure(EventKind kind, const BeatHemodynamics& b,
                                                 const SeriesProbe& probe, const HemodynamicSeries& s,
                                                 const ComponentVariation& v) {
   bool left = kind == EventKind::A2;
   double close = left ? b.aortic_close_s : b.pulmonic_close_s;
+  double relaxed = left ? b.mitral_open_s : b.tricuspid_open_s;
   if (!finite(close) || !probe.covers(close)) return std::nullopt;
+  if (!finite(relaxed) || relaxed <= close || relaxed > close + kRelaxationSearchS)
+    relaxed = close + kIsovolumicFallbackS;
   const auto& artery = left ? s.p_ao : s.p_pa;
   const auto& ventricle = left ? s.p_lv : s.p_rv;
-  double drive = probe.value(artery, close) - probe.value(ventricle, close + kSemilunarLoadDelayS);
   double load = probe.value(artery, close);
+  double drive = load - probe.value(ventricle, relaxed);
   return make_component(kind, b.beat, close, std::max(drive, 0.0), load, v);
 }
 
@@ -115,18 +121,20 @@ std::optional<SoundComponent> early_filling(const BeatHemodynamics& b, const Bea
                         probe.value(s.p_lv, decel.time_s), v);
 }
 
-// S4: atrial filling distending the ventricle before it contracts. The drive is the steepest
-// rise of LV pressure between atrial activation and LV activation: the same atrial inflow
-// raises the pressure faster in a stiffer ventricle.
+// S4: the atrial filling wave decelerated by the ventricle before it contracts, from the
+// A-wave's peak until the inflow stops or the valve closes.
 std::optional<SoundComponent> atrial_filling(const BeatHemodynamics& b, const SeriesProbe& probe,
                                              const HemodynamicSeries& s, const ComponentVariation& v) {
   double start = b.atrial_activation_s + kAtrialContractionDelayS;
-  double end = b.lv_activation_s;
+  double end = b.lv_activation_s + kAtrialWaveAfterActivationS;
   if (finite(b.mitral_close_s)) end = std::min(end, b.mitral_close_s);
   if (!finite(start) || !finite(end) || end <= start || !probe.covers(start)) return std::nullopt;
-  auto rise = probe.max_rate(s.p_lv, nullptr, start, end);
-  return make_component(EventKind::S4, b.beat, rise.time_s, std::max(rise.value, 0.0),
-                        probe.value(s.p_lv, rise.time_s), v);
+  auto a_peak = probe.max_value(s.q_mitral, start, end);
+  double decel_end = first_non_positive(probe, s.q_mitral, a_peak.time_s, end, 1.0 / s.rate_hz);
+  if (decel_end <= a_peak.time_s) decel_end = end;
+  auto decel = probe.min_rate(s.q_mitral, a_peak.time_s, decel_end);
+  return make_component(EventKind::S4, b.beat, decel.time_s, std::max(-decel.value, 0.0),
+                        probe.value(s.p_lv, decel.time_s), v);
 }
 
 double log_normal(RandomStream& rng, double sd) { return std::exp(sd * rng.normal()); }

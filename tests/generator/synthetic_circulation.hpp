@@ -16,7 +16,7 @@ struct SyntheticBeatShape {
   double aortic_close_mmhg = 95;
   double pa_close_mmhg = 18;
   double e_wave_decel_ml_s2 = 6000;  // deceleration of the early inflow
-  double atrial_lv_rise_mmhg_s = 30; // LV pressure slope during atrial filling
+  double a_wave_decel_ml_s2 = 3000;  // deceleration of the atrial inflow
 };
 
 inline double ramp(double t, double t0, double t1, double v0, double v1) {
@@ -51,8 +51,6 @@ inline gen::CirculationResult synthetic_circulation(const SyntheticBeatShape& sh
     if (t >= mc && t < ao) lv = 5.0 + shape.lv_rise_mmhg_s * (t - mc);
     else if (t >= ao && t < ac) lv = std::min(lv_open + 300.0 * (t - ao), 110.0);
     else if (t >= ac) lv = ramp(t, ac, mo, 90.0, 3.0);
-    // Atrial filling raises LV pressure just before activation (t in [0.91, 1)).
-    if (t >= 1.0 + atrial_rise_start) lv = 3.0 + shape.atrial_lv_rise_mmhg_s * (t - (1.0 + atrial_rise_start));
     s.p_lv[k] = lv;
     s.p_la[k] = 4.0;
     s.p_ao[k] = t < ao ? 80.0 : (t < ac ? ramp(t, ao, ac, lv_open, shape.aortic_close_mmhg)
@@ -66,6 +64,11 @@ inline gen::CirculationResult synthetic_circulation(const SyntheticBeatShape& sh
     s.p_pa[k] = t < po ? rv_open : (t < pc ? ramp(t, po, pc, rv_open, shape.pa_close_mmhg)
                                            : ramp(t, pc, 1.0, shape.pa_close_mmhg, 8.0));
     s.q_mitral[k] = t < mo ? 0.0 : (t < e_peak ? ramp(t, mo, e_peak, 0.0, e_amp) : ramp(t, e_peak, e_end, e_amp, 0.0));
+    // The A-wave: rises over 80 ms to its peak 20 ms before activation, then decelerates.
+    double tt = t > 0.5 ? t - 1.0 : t;  // time from the next (or this) activation
+    const double a_peak = -0.02, a_amp = 200.0, a_end = a_peak + a_amp / shape.a_wave_decel_ml_s2;
+    if (tt > atrial_rise_start && tt < a_end)
+      s.q_mitral[k] += tt < a_peak ? ramp(tt, atrial_rise_start, a_peak, 0.0, a_amp) : ramp(tt, a_peak, a_end, a_amp, 0.0);
   }
   for (int b = 0; b < 4; ++b) {
     gen::BeatHemodynamics beat;

@@ -67,10 +67,10 @@ TEST_CASE("semilunar closure: louder and higher pitched under a higher arterial 
 TEST_CASE("filling sounds grow with the inflow deceleration and the ventricle's stiffness", "[sources]") {
   test::SyntheticBeatShape compliant, stiff;
   stiff.e_wave_decel_ml_s2 = 3 * compliant.e_wave_decel_ml_s2;
-  stiff.atrial_lv_rise_mmhg_s = 3 * compliant.atrial_lv_rise_mmhg_s;
+  stiff.a_wave_decel_ml_s2 = 3 * compliant.a_wave_decel_ml_s2;
   REQUIRE(component_for(EventKind::S3, stiff).amplitude > 2 * component_for(EventKind::S3, compliant).amplitude);
-  // S4 louder as diastolic stiffness rises: the same atrial inflow raises LV pressure faster
-  // (trade fact).
+  // S4 louder as diastolic stiffness rises: a stiffer ventricle checks the same atrial inflow
+  // faster (trade fact).
   REQUIRE(component_for(EventKind::S4, stiff).amplitude > 2 * component_for(EventKind::S4, compliant).amplitude);
   // Faint in a compliant heart: well below S1 (trade fact).
   REQUIRE(component_for(EventKind::S3, compliant).amplitude < 0.2 * component_for(EventKind::M1, compliant).amplitude);
