@@ -142,9 +142,17 @@ std::vector<DetectedSound> detect_heart_sounds(const float* samples, std::size_t
   std::vector<double> env = shannon_envelope(x, fs, o.frame_s, o.hop_s);
   if (env.size() < 3) return {};
   auto spacing = static_cast<std::size_t>(std::lround(o.min_spacing_s / o.hop_s));
-  std::vector<double> peaks = pick_peaks(env, o.threshold, std::max<std::size_t>(spacing, 1));
   double period = heart_period(env, o.hop_s);
-  if (peaks.size() < 3 || period <= 0) return {};
+  if (period <= 0) return {};
+  // Two sounds a beat are expected: when a faint S2 (or S1) stays under the threshold, lower it
+  // step by step until the count reaches 80 % of two per period.
+  const double expected_peaks = 2.0 * static_cast<double>(env.size()) / period;
+  std::vector<double> peaks;
+  for (double threshold = o.threshold; threshold >= o.threshold - 1.0; threshold -= 0.2) {
+    peaks = pick_peaks(env, threshold, std::max<std::size_t>(spacing, 1));
+    if (static_cast<double>(peaks.size()) >= 0.8 * expected_peaks) break;
+  }
+  if (peaks.size() < 3) return {};
 
   // Expected S1-centre to S2-centre time: QS2 (Weissler et al. 1968, men) less the time from
   // Q to the S1 centre and plus half an S2 (about 75 ms together; Schmidt et al. 2010 durations).

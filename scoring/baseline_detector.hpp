@@ -4,7 +4,8 @@
 //  2. normalised average Shannon energy envelope over 20 ms frames every 10 ms (Liang,
 //     Lukkarinen & Hartimo 1997, "Heart sound segmentation algorithm based on heart sound
 //     envelogram", Computers in Cardiology 24:105);
-//  3. peak picking on the envelope with a minimum spacing;
+//  3. peak picking on the envelope with a minimum spacing, the threshold lowered until about
+//     two sounds per heart period pass;
 //  4. heart period from the envelope's autocorrelation, and S1/S2 labels from interval logic:
 //     peak-to-peak intervals fall into a systolic and a diastolic cluster; the cluster nearer the
 //     systolic duration expected at that heart rate (Weissler, Harris & Schoenfeld 1968,
@@ -28,7 +29,8 @@ struct BaselineOptions {
   double low_hz = 25, high_hz = 400;  // band-pass edges (high clamped below Nyquist)
   double frame_s = 0.020, hop_s = 0.010;
   double min_spacing_s = 0.10;        // peaks closer than this are one sound
-  double threshold = 0.3;             // on the z-scored envelope, in standard deviations
+  double threshold = 0.3;             // on the z-scored envelope (SD units); lowered by up to 1
+                                      // when fewer than 80 % of two peaks per beat pass
 };
 
 // One biquad section, transposed direct form II (b0 b1 b2 / 1 a1 a2).

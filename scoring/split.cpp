@@ -22,7 +22,8 @@ constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
 
 // What a participant may see of a record: its signal, rate, sites, sensor and length.
 // Everything that reveals physiology, noise or truth is dropped or set to NaN / empty; the
-// state field, which the bundle always stores, reads "rest" for every public record.
+// state field, which the bundle always stores, reads "rest" for every public record, and the
+// list of stationary noise processes reads "withheld".
 Record blinded(const Record& full, const std::string& public_id, std::uint64_t position) {
   Record r;
   r.subject.record_id = public_id;
@@ -40,6 +41,7 @@ Record blinded(const Record& full, const std::string& public_id, std::uint64_t p
   r.summary.heart_rate_bpm = r.summary.cardiac_output_l_min = kNaN;
   r.summary.lv_ejection_fraction = r.summary.rv_ejection_fraction = kNaN;
   r.summary.snr_target_db = r.summary.snr_achieved_db = kNaN;
+  r.summary.stationary_noise = {"withheld"};
   return r;
 }
 

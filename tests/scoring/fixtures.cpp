@@ -92,6 +92,7 @@ Record fixture_record(const FixtureSpec& spec) {
   }
   r.pcg = r.pcg_clean;
   if (spec.snr_db) {
+    r.summary.stationary_noise = {"sensor_white"};
     // White noise scaled to the SNR over the whole record (signal and noise mean powers).
     RandomStream rng(spec.seed, 0, 77);
     for (std::size_t site = 0; site < n_sites; ++site) {

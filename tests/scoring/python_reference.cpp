@@ -7,6 +7,7 @@
 #include <sstream>
 #include <stdexcept>
 
+#include <sys/wait.h>
 #include <unistd.h>
 
 namespace stethogen::test {
@@ -32,6 +33,22 @@ nlohmann::json run_python(const std::string& script, const nlohmann::json& input
   if (std::system(command.c_str()) != 0) throw std::runtime_error("reference script failed: " + command);
   std::ifstream out(dir.file("output.json"));
   return nlohmann::json::parse(out);
+}
+
+CommandResult run_stethogen(const std::string& arguments) {
+  const char* binary = std::getenv("STETHOGEN_BINARY");
+  if (!binary) throw std::runtime_error("STETHOGEN_BINARY is not set");
+  TempDir dir;
+  std::string command = std::string(binary) + " " + arguments + " > " + dir.file("out") + " 2> " + dir.file("err");
+  int status = std::system(command.c_str());
+  CommandResult r;
+  r.exit_code = WIFEXITED(status) ? WEXITSTATUS(status) : -1;
+  std::stringstream out, err;
+  out << std::ifstream(dir.file("out")).rdbuf();
+  err << std::ifstream(dir.file("err")).rdbuf();
+  r.out = out.str();
+  r.err = err.str();
+  return r;
 }
 
 }  // namespace stethogen::test

@@ -10,6 +10,13 @@ namespace stethogen::test {
 
 nlohmann::json run_python(const std::string& script, const nlohmann::json& input);
 
+// Runs the stethogen binary (env STETHOGEN_BINARY) with arguments; captures both streams.
+struct CommandResult {
+  int exit_code = -1;
+  std::string out, err;
+};
+CommandResult run_stethogen(const std::string& arguments);
+
 // A fresh empty directory under the system temporary directory, removed by the destructor.
 class TempDir {
  public:
