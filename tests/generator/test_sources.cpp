@@ -110,7 +110,7 @@ TEST_CASE("components are band-limited: sampling at 1 kHz is alias-free", "[sour
   std::string path = test::write_samples("band", x);
   // numpy.fft: the energy above 500 Hz (the Nyquist frequency of the lowest output rate) is
   // below -60 dB of the total.
-  std::vector<double> above = test::run_reference("band_energy " + path + " 48000 500 24000");
+  std::vector<double> above = test::run_reference("band_energy 48000 500 24000 " + path);
   std::remove(path.c_str());
   REQUIRE(above.size() == 1);
   REQUIRE(above[0] < 1e-6);

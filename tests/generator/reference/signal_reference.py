@@ -6,7 +6,8 @@
                               scipy.signal.butter(ORDER, FC, KIND, fs=FS, output='sos'), a line per SPEC.
   inst_freq FILE FS         FILE holds float64 samples; prints the instantaneous frequency (Hz) from
                             the unwrapped phase of scipy.signal.hilbert, one value per sample.
-  band_energy FILE FS LO HI prints the fraction of the signal's energy between LO and HI Hz (numpy rfft).
+  band_energy FS LO HI FILE...  prints, a line per FILE of float64 samples, the fraction of its
+                                energy between LO and HI Hz (numpy rfft).
 """
 import sys
 
@@ -56,12 +57,13 @@ def main(argv):
         for v in f:
             print(f"{v:.9g}")
     elif cmd == "band_energy":
-        x = np.fromfile(argv[2], dtype=np.float64)
-        fs, lo, hi = float(argv[3]), float(argv[4]), float(argv[5])
-        spec = np.abs(np.fft.rfft(x)) ** 2
-        f = np.fft.rfftfreq(len(x), 1 / fs)
-        band = (f >= lo) & (f <= hi)
-        print(f"{spec[band].sum() / spec.sum():.12g}")
+        fs, lo, hi = float(argv[2]), float(argv[3]), float(argv[4])
+        for path in argv[5:]:
+            x = np.fromfile(path, dtype=np.float64)
+            spec = np.abs(np.fft.rfft(x)) ** 2
+            f = np.fft.rfftfreq(len(x), 1 / fs)
+            band = (f >= lo) & (f <= hi)
+            print(f"{spec[band].sum() / spec.sum():.12g}")
     else:
         raise SystemExit(f"unknown command {cmd}")
 
