@@ -34,9 +34,18 @@ GroupKey grade_group(const RecordInfo& info) {
 
 GroupKey site_group(const std::string& site) { return {kSite, site.empty() ? 0 : 1, site.empty() ? "heart" : site}; }
 
+GroupKey state_snr_group(const RecordInfo& info) {
+  int state_rank = static_cast<int>(kAllStates.size());
+  for (std::size_t i = 0; i < kAllStates.size(); ++i)
+    if (name(kAllStates[i]) == info.state) state_rank = static_cast<int>(i);
+  GroupKey snr = snr_group(info.snr_db);
+  return {kStateSnr, state_rank * 10 + snr.rank, info.state + ", " + snr.value};
+}
+
 std::vector<GroupKey> record_groups(const RecordInfo& info) {
-  return {GroupKey{kAll, 0, "all"}, GroupKey{kPopulation, 0, info.population}, GroupKey{kState, 0, info.state},
-          grade_group(info), snr_group(info.snr_db), heart_rate_group(info.heart_rate_bpm)};
+  return {GroupKey{kAll, 0, "all"},  GroupKey{kPopulation, 0, info.population}, GroupKey{kState, 0, info.state},
+          grade_group(info),         snr_group(info.snr_db),                     heart_rate_group(info.heart_rate_bpm),
+          state_snr_group(info)};
 }
 
 }  // namespace stethogen::scoring

@@ -12,9 +12,9 @@
 
 namespace stethogen::scoring {
 
-inline constexpr std::array<std::string_view, 7> kDimensions = {"all", "population", "state", "grade",
-                                                                "snr", "heart_rate", "site"};
-enum Dimension : int { kAll, kPopulation, kState, kGrade, kSnr, kHeartRate, kSite };
+inline constexpr std::array<std::string_view, 8> kDimensions = {"all", "population", "state", "grade",
+                                                                "snr", "heart_rate", "site", "state_snr"};
+enum Dimension : int { kAll, kPopulation, kState, kGrade, kSnr, kHeartRate, kSite, kStateSnr };
 
 // One group; ordered by dimension, then by rank (band order), then by name.
 struct GroupKey {
@@ -35,7 +35,10 @@ GroupKey grade_group(const RecordInfo& info);
 // The site of a detection channel; "heart" for heart-level times.
 GroupKey site_group(const std::string& site);
 
-// All record-level groups of a record: all, population, state, grade, snr, heart_rate.
+// State and SNR band together ("rest, 10-20 dB"): how hard each part of a dataset is.
+GroupKey state_snr_group(const RecordInfo& info);
+
+// All record-level groups of a record: all, population, state, grade, snr, heart_rate, state_snr.
 std::vector<GroupKey> record_groups(const RecordInfo& info);
 
 }  // namespace stethogen::scoring

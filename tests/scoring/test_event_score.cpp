@@ -139,6 +139,8 @@ TEST_CASE("a record without detections counts as all missed and is listed", "[ev
   REQUIRE(s.groups.count(GroupKey{kSnr, 4, "none"}) == 1);
   REQUIRE(s.groups.count(GroupKey{kHeartRate, 2, "100-140 bpm"}) == 1);
   REQUIRE(s.groups.count(GroupKey{kGrade, 12, "severity 0.50-0.75"}) == 1);
+  REQUIRE(s.groups.count(GroupKey{kStateSnr, 21, "lv_failure, 0-10 dB"}) == 1);
+  REQUIRE(s.groups.count(GroupKey{kStateSnr, 4, "rest, none"}) == 1);
 }
 
 TEST_CASE("the sweep scores every tolerance and more tolerance never matches less", "[event_score]") {

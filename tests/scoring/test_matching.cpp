@@ -112,6 +112,19 @@ TEST_CASE("a doublet is matched by its closer detection", "[matching]") {
   REQUIRE(pairs[0].detection == 1);
 }
 
+TEST_CASE("a component too large for the exact table is still matched completely", "[matching]") {
+  // 3000 sounds 10 ms apart, each detected 1 ms late, window 50 ms: one cluster of 6000 points,
+  // beyond the exact table; the earliest-first greedy still pairs every sound (Glover 1967).
+  std::vector<double> truth, detections;
+  for (int i = 0; i < 3000; ++i) {
+    truth.push_back(0.01 * i);
+    detections.push_back(0.01 * i + 0.001);
+  }
+  auto pairs = match_events(truth, detections, 0.05);
+  REQUIRE(pairs.size() == 3000);
+  for (const MatchedPair& p : pairs) REQUIRE(p.truth == p.detection);
+}
+
 TEST_CASE("empty inputs match nothing", "[matching]") {
   std::vector<double> none, some = {1.0, 2.0};
   REQUIRE(match_events(none, some, 0.1).empty());
