@@ -210,3 +210,27 @@ TEST_CASE("a missing or unreadable recipe is an input error", "[recipe]") {
   CHECK_THROWS_WITH(load_recipe(test::source_dir() + "/recipes"),
                     Catch::Contains("cannot read recipe: not a regular file"));
 }
+
+TEST_CASE("every example recipe in recipes/ validates", "[recipe]") {
+  int n = 0;
+  for (const auto& e : std::filesystem::directory_iterator(test::source_dir() + "/recipes")) {
+    if (e.path().extension() != ".toml") continue;
+    INFO(e.path().string());
+    Recipe r = load_recipe(e.path().string());
+    CHECK(record_count(r) > 0);
+    ++n;
+  }
+  CHECK(n >= 2);
+}
+
+TEST_CASE("the grading example crosses 8 intensities and 5 severities with 3 SNRs", "[recipe]") {
+  Recipe r = load_recipe(test::source_dir() + "/recipes/grades_by_snr.toml");
+  std::size_t exercise = 0, failure = 0;
+  for (const auto& p : r.populations) {
+    exercise += p.sweep == "exercise";
+    failure += p.sweep == "lvf" || p.sweep == "rvf" || p.sweep == "gf";
+  }
+  CHECK(exercise == 8 * 3);
+  CHECK(failure == 3 * 5 * 3);
+  CHECK(record_count(r) == 12 + (8 * 3 + 3 * 5 * 3) * 4);
+}
