@@ -142,7 +142,8 @@ std::string segment_report_text(const SegmentScore& score, const Detections& det
       for (int d = 0; d <= 4; ++d) labelled += c[t][d];
     out += fmt::format("{:<{}}  {:>12} {:>9}\n", g.value, width, labelled, cell(accuracy(c), "{:.4f}"));
   }
-  const Confusion& all = score.groups.at(GroupKey{kAll, 0, "all"});
+  auto all_group = score.groups.find(GroupKey{kAll, 0, "all"});
+  const Confusion all = all_group == score.groups.end() ? Confusion{} : all_group->second;
   out += fmt::format("\nconfusion (rows: true, columns: detected; samples)\n{:<10}", "");
   for (const char* l : kLabels) out += fmt::format(" {:>12}", l);
   out += "\n";

@@ -3,6 +3,8 @@
 #include <cmath>
 #include <numbers>
 
+#include <fmt/format.h>
+
 #include "core/random.hpp"
 
 namespace stethogen::test {
@@ -103,6 +105,22 @@ Record fixture_record(const FixtureSpec& spec) {
     }
   }
   return r;
+}
+
+std::string states_as_csv(const Record& r, std::size_t site, double shift_s, bool header) {
+  static const char* kStateNames[5] = {"", "S1", "systole", "S2", "diastole"};
+  std::string csv = header ? "record_id,site,start_s,end_s,state\n" : "";
+  const double fs = r.sample_rate_hz;
+  std::size_t n = r.states.n_samples, start = 0;
+  for (std::size_t k = 1; k <= n; ++k) {
+    if (k < n && r.states.at(site, k) == r.states.at(site, start)) continue;
+    std::uint8_t label = r.states.at(site, start);
+    double a = std::max(0.0, start / fs + shift_s), b = std::min(n / fs, k / fs + shift_s);
+    if (label != 0 && b > a)
+      csv += fmt::format("{},{},{},{},{}\n", r.subject.record_id, name(r.sites[site]), a, b, kStateNames[label]);
+    start = k;
+  }
+  return csv;
 }
 
 }  // namespace stethogen::test

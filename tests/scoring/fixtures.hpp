@@ -27,4 +27,7 @@ struct FixtureSpec {
 // Heart-level events plus one row per site, delayed 2 ms per site index.
 Record fixture_record(const FixtureSpec& spec);
 
+// The record's own labels at one site as segmentation rows, every boundary moved by shift_s.
+std::string states_as_csv(const Record& r, std::size_t site, double shift_s, bool header = true);
+
 }  // namespace stethogen::test

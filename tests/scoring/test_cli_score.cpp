@@ -77,6 +77,22 @@ TEST_CASE("score reads a bundle's truth and reports text and JSON", "[cli]") {
   REQUIRE_THAT(again.err, Catch::Contains("--force"));
 }
 
+TEST_CASE("score reads a segmentation and scores the true states as perfect", "[cli]") {
+  test::TempDir dir;
+  std::vector<Record> records = write_fixture_bundle(dir.file("truth.h5"));
+  std::ofstream(dir.file("seg.csv")) << test::states_as_csv(records[0], 0, 0) + test::states_as_csv(records[1], 0, 0, false);
+  auto r = test::run_stethogen(fmt::format("score {} {} --json -", dir.file("truth.h5"), dir.file("seg.csv")));
+  INFO(r.err);
+  REQUIRE(r.exit_code == 0);
+  const json report = json::parse(r.out);
+  REQUIRE(report["format"] == "segments");
+  REQUIRE(report["sites"] == json::array({"aortic"}));
+  REQUIRE(report["groups"][0]["accuracy"] == 1.0);
+  for (const json& b : report["boundaries"]) REQUIRE(b["unmatched"] == 0);
+  auto text = test::run_stethogen(fmt::format("score {} {}", dir.file("truth.h5"), dir.file("seg.csv")));
+  REQUIRE_THAT(text.out, Catch::Contains("confusion (rows: true, columns: detected; samples)"));
+}
+
 TEST_CASE("score stops at a bad row with exit code 2, or counts it with --lenient", "[cli]") {
   test::TempDir dir;
   write_fixture_bundle(dir.file("truth.h5"));

@@ -2,8 +2,6 @@
 
 #include <sstream>
 
-#include <fmt/format.h>
-
 #include "fixtures.hpp"
 #include "scoring/segment_score.hpp"
 
@@ -11,24 +9,6 @@ using namespace stethogen;
 using namespace stethogen::scoring;
 
 namespace {
-
-const char* kStateNames[5] = {"", "S1", "systole", "S2", "diastole"};
-
-// The truth's own labels of one site as segment rows, every boundary moved by shift_s.
-std::string states_as_csv(const Record& r, std::size_t site, double shift_s) {
-  std::string csv = "record_id,site,start_s,end_s,state\n";
-  const double fs = r.sample_rate_hz;
-  std::size_t n = r.states.n_samples, start = 0;
-  for (std::size_t k = 1; k <= n; ++k) {
-    if (k < n && r.states.at(site, k) == r.states.at(site, start)) continue;
-    std::uint8_t label = r.states.at(site, start);
-    double a = std::max(0.0, start / fs + shift_s), b = std::min(n / fs, k / fs + shift_s);
-    if (label != 0 && b > a)
-      csv += fmt::format("{},{},{},{},{}\n", r.subject.record_id, name(r.sites[site]), a, b, kStateNames[label]);
-    start = k;
-  }
-  return csv;
-}
 
 SegmentScore score(const MemoryTruth& truth, const std::string& csv) {
   std::istringstream in(csv);
@@ -40,7 +20,7 @@ SegmentScore score(const MemoryTruth& truth, const std::string& csv) {
 TEST_CASE("the true states fed back score accuracy 1 and zero boundary error", "[segment_score]") {
   Record r = test::fixture_record({});
   MemoryTruth truth({r});
-  SegmentScore s = score(truth, states_as_csv(r, 1, 0));
+  SegmentScore s = score(truth, test::states_as_csv(r, 1, 0));
   const Confusion& c = s.groups.at(GroupKey{kAll, 0, "all"});
   REQUIRE(accuracy(c) == 1.0);
   for (int t = 1; t <= 4; ++t)
@@ -57,7 +37,7 @@ TEST_CASE("the true states fed back score accuracy 1 and zero boundary error", "
 TEST_CASE("a segmentation 20 ms late shows a 20 ms boundary bias and the samples it mislabels", "[segment_score]") {
   Record r = test::fixture_record({});
   MemoryTruth truth({r});
-  SegmentScore s = score(truth, states_as_csv(r, 1, 0.020));
+  SegmentScore s = score(truth, test::states_as_csv(r, 1, 0.020));
   for (const BoundaryErrors& b : s.boundaries) REQUIRE(summarize_timing(b.errors_s).bias_ms == Approx(20.0).margin(1e-6));
   // Every boundary moves 40 samples at 2 kHz: 4 boundaries per beat mislabel 40 samples each.
   const Confusion& c = s.groups.at(GroupKey{kAll, 0, "all"});
