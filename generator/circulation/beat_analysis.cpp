@@ -69,7 +69,9 @@ SideEvents side_events(const std::vector<ValveTransition>& tr, Valve inflow, Val
   // closing AV valve may finish just after the outflow valve opens).
   const double mid_ejection = std::isnan(s.outflow_close) ? hi : 0.5 * (s.outflow_open + s.outflow_close);
   s.inflow_close = last_transition(tr, inflow, false, lo, mid_ejection);
-  s.inflow_open = std::isnan(s.outflow_close) ? kNoTime : first_transition(tr, inflow, true, s.outflow_close, hi);
+  // Its reopening is the first opening after mid-ejection (with a low pulmonary pressure the
+  // tricuspid may reopen just before the pulmonic valve has finished closing).
+  s.inflow_open = std::isnan(s.outflow_close) ? kNoTime : first_transition(tr, inflow, true, mid_ejection, hi);
   return s;
 }
 

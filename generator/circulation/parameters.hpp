@@ -43,10 +43,10 @@ struct ComplianceParams {
 // (the linear heart-rate dependence of systolic time intervals, Weissler et al. 1968).
 // Atria: a raised-cosine pulse (Heldt, Shim, Kamm & Mark 2002, J Appl Physiol 92:1239).
 struct ActivationTiming {
-  double lv_electromechanical_delay_s = 0.040;  // Q to the onset of LV elastance rise
+  double lv_electromechanical_delay_s = 0.045;  // Q to the onset of LV elastance rise
   double rv_extra_delay_s = 0.015;              // RV mechanical onset after LV at zero lv_rv_delay
   double atrial_electromechanical_delay_s = 0.070;  // P onset to atrial contraction
-  double ventricular_period_base_s = 0.35, ventricular_period_slope = 0.55;
+  double ventricular_period_base_s = 0.37, ventricular_period_slope = 0.50;
   double hill_tau1_fraction = 0.269, hill_tau2_fraction = 0.452;
   double hill_m1 = 1.32, hill_m2 = 20.0;
   // RV contraction is shorter than the LV one (its ejection still lasts longer: low pulmonary

@@ -174,6 +174,7 @@ EngineRun run_engine(const SubjectSpec& subject, const IntegratorSettings& setti
         r.transitions.push_back({kValves[i], g1 > 0, t_cross, 0});
     }
     previous = now;
+    if (t_prev < series_begin && series_begin <= t_now) integ.state_at(series_begin, run.series_start_state);
     while (s.size() < n_samples && s.time_at(s.size()) <= t_now) {
       const double t = s.time_at(s.size());
       integ.state_at(t, x);

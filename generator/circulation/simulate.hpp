@@ -33,6 +33,7 @@ struct EngineRun {
   double recording_start_s = 0;     // where the run-in state is handed over (before the series)
   CirculationState recording_start_state{};
   double steady_lv_volume_ml = 0, steady_rv_volume_ml = 0;  // at Q after the run-in
+  CirculationState series_start_state{};  // at result.series.t0_s
   int run_in_beats = 0;
   CirculationResult result;
 };
