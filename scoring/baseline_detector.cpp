@@ -180,7 +180,9 @@ std::vector<DetectedSound> detect_heart_sounds(const float* samples, std::size_t
     c_short = s_sum / s_n;
     c_long = l_sum / l_n;
   }
-  bool short_is_systole = std::abs(c_short - expected_systole) <= std::abs(c_long - expected_systole);
+  // Durations compare by ratio: 0.1 s is further from 0.24 s than 0.43 s is.
+  bool short_is_systole =
+      std::abs(std::log(c_short / expected_systole)) <= std::abs(std::log(c_long / expected_systole));
   double systole = short_is_systole ? c_short : c_long, diastole = short_is_systole ? c_long : c_short;
 
   // +1: systolic interval, -1: diastolic, 0: neither (a missed or an extra peak).
