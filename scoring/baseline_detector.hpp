@@ -7,7 +7,7 @@
 //  3. peak picking on the envelope with a minimum spacing, the threshold lowered until about
 //     two sounds per heart period pass;
 //  4. heart period from the envelope's autocorrelation, and S1/S2 labels from interval logic:
-//     peak-to-peak intervals fall into a systolic and a diastolic cluster; the cluster nearer the
+//     peak-to-peak intervals fall into a systolic and a diastolic cluster; the cluster nearer (by ratio) the
 //     systolic duration expected at that heart rate (Weissler, Harris & Schoenfeld 1968,
 //     Circulation 37:149: QS2 = 546 - 2.1 HR ms) is systole, which is the shorter one at rest
 //     (Liang et al. 1997). A peak that starts a systolic or ends a diastolic interval is S1.
