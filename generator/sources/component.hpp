@@ -18,7 +18,7 @@ inline constexpr double kEnvelopeOrder = 2.0;
 // Onset and offset of a component: where its envelope crosses this fraction of its peak.
 inline constexpr double kEnvelopeThreshold = 0.1;
 // The envelope is treated as zero below this fraction of its peak (end of the support).
-inline constexpr double kSupportFraction = 1e-6;
+inline constexpr double kSupportFraction = 1e-5;
 
 struct SoundComponent {
   EventKind kind = EventKind::M1;

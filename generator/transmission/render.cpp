@@ -86,7 +86,11 @@ Rendering render_sites(const std::vector<SoundComponent>& components, const std:
         const SoundComponent& c = components[m];
         int ci = component_index(c.kind);
         double delay = path.delay_s[ci], weight = path.weight[ci];
-        for (std::size_t i = 0; i < len; ++i)
+        // Evaluate only on the component's own support; zero elsewhere.
+        std::fill(member.begin(), member.end(), Complex{});
+        auto lo = static_cast<std::size_t>(std::max(0.0, std::floor((c.start_s + delay) * fs) - first));
+        auto hi = std::min(len, static_cast<std::size_t>(std::ceil((c.support_end_s() + delay) * fs) - first) + 1);
+        for (std::size_t i = lo; i < hi; ++i)
           member[i] = weight * c.analytic(static_cast<double>(first + static_cast<std::int64_t>(i)) / fs - delay);
         filter_in_place(path.filter, member.data(), len);
         for (std::size_t i = 0; i < len; ++i) {

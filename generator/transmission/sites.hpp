@@ -12,8 +12,9 @@
 namespace stethogen::gen {
 
 // Sensor output (full-scale units) per heart-level amplitude unit before chest wall and sensor
-// shape: a healthy resting S1 peaks near -10 dBFS at 0 dB sensor gain.
-inline constexpr double kFullScalePerAmplitudeUnit = 0.3;
+// shape: a healthy resting S1 peaks near -15 dBFS at the mitral area (electronic sensor, 0 dB
+// gain), leaving headroom for the loudest exercise S1 with the bell.
+inline constexpr double kFullScalePerAmplitudeUnit = 0.2;
 
 struct SitePath {
   Site site = Site::mitral;
