@@ -3,9 +3,11 @@
 // written. Drives the built binary (STETHOGEN_BINARY; the sanitized one in a sanitizer build).
 #include <catch2/catch.hpp>
 
+#include <algorithm>
 #include <filesystem>
 #include <fstream>
 #include <string>
+#include <vector>
 
 #include <fmt/format.h>
 
@@ -93,6 +95,16 @@ TEST_CASE("an output directory that cannot be written is refused and its content
   CHECK_FALSE(fs::exists(dir.path() / "key.h5"));
 }
 
+namespace {
+// The folder entries directly under dir, for "nothing was left behind".
+std::vector<std::string> entries(const fs::path& dir) {
+  std::vector<std::string> names;
+  for (const auto& e : fs::directory_iterator(dir)) names.push_back(e.path().filename().string());
+  std::sort(names.begin(), names.end());
+  return names;
+}
+}  // namespace
+
 TEST_CASE("a target path that is a directory is refused and the directory kept", "[faults]") {
   test::TempDir dir;
   std::ofstream(dir.path() / "night.toml") << tiny_recipe(2);
@@ -100,6 +112,7 @@ TEST_CASE("a target path that is a directory is refused and the directory kept",
   fs::create_directory(dir.path() / "taken.h5");
   std::ofstream(dir.path() / "taken.h5" / "notes.txt") << "the user's own file\n";
   const auto before = snapshot(dir.path());
+  const auto listing = entries(dir.path());
 
   for (bool force : {false, true}) {
     const std::vector<std::string> f = force ? std::vector<std::string>{"--force"} : std::vector<std::string>{};
@@ -108,7 +121,9 @@ TEST_CASE("a target path that is a directory is refused and the directory kept",
       return args;
     };
     INFO("--force: " << force);
-    require_clear_error(run_stethogen(dir.path(), with({"generate", "night.toml", "-o", "taken.h5", "--quiet"})), "taken.h5");
+    // generate --force is the next test case.
+    if (!force)
+      require_clear_error(run_stethogen(dir.path(), with({"generate", "night.toml", "-o", "taken.h5", "--quiet"})), "taken.h5");
     require_clear_error(run_stethogen(dir.path(), with({"merge", "night.h5", "-o", "taken.h5"})), "taken.h5");
     require_clear_error(run_stethogen(dir.path(), with({"split", "night.h5", "--public", "taken.h5", "--key", "k.h5"})),
                         "taken.h5");
@@ -117,7 +132,28 @@ TEST_CASE("a target path that is a directory is refused and the directory kept",
     require_clear_error(run_stethogen(dir.path(), with({"export", "night.h5", "--format", "csv", "--out", "night.toml"})),
                         "night.toml");
     CHECK(snapshot(dir.path()) == before);
+    CHECK(entries(dir.path()) == listing);
   }
+}
+
+// Known bug, reported for bundle/generate.cpp: with --force and a directory as -o, generate
+// synthesises every record before the final rename fails ("Is a directory"), leaves the run
+// directory OUT.partial behind and advises to "free space" and --resume, which fails again.
+// It should refuse the directory before any work. [!mayfail] until that lands.
+TEST_CASE("generate --force onto a directory refuses before any work and leaves nothing", "[faults][!mayfail]") {
+  test::TempDir dir;
+  std::ofstream(dir.path() / "night.toml") << tiny_recipe(2);
+  fs::create_directory(dir.path() / "taken.h5");
+  std::ofstream(dir.path() / "taken.h5" / "notes.txt") << "the user's own file\n";
+  const auto before = snapshot(dir.path());
+  const auto listing = entries(dir.path());
+  const RunResult r = run_stethogen(dir.path(), {"generate", "night.toml", "-o", "taken.h5", "--force", "--quiet"});
+  require_clear_error(r, "taken.h5");
+  CHECK(r.exit_code == 2);
+  // What the user had is kept in any case; this holds today.
+  for (const auto& [name, content] : before) CHECK(test::read_text(dir.path() / name) == content);
+  // Nothing left behind: fails today (taken.h5.partial/ with the synthesised records).
+  CHECK(entries(dir.path()) == listing);
 }
 
 TEST_CASE("a shard of another format version is refused by merge, naming the shard", "[faults]") {
