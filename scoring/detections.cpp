@@ -153,9 +153,15 @@ class Parser {
 
   std::vector<Field> row_fields(const std::string& line, std::uint32_t number) {
     std::vector<Field> fields = split_fields(line);
-    if (fields.size() != n_columns_)
+    if (fields.size() != n_columns_) {
+      std::string hint;
+      for (char delimiter : {';', '\t', '|'})
+        if (fields.size() == 1 && line.find(delimiter) != std::string::npos)
+          hint = fmt::format(" (the row looks {}-separated)", delimiter == '\t' ? "tab" : fmt::format("'{}'", delimiter));
       fail("wrong number of fields", number, 1, "",
-           fmt::format("expected {} comma-separated fields as in the header, found {}", n_columns_, fields.size()));
+           fmt::format("expected {} comma-separated fields as in the header, found {}{}", n_columns_, fields.size(),
+                       hint));
+    }
     return fields;
   }
 

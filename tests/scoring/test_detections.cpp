@@ -54,6 +54,7 @@ TEST_CASE("each kind of bad detections file is refused with its line, column and
       {"unsorted", h + "r000000,S1,2.0\nr000000,S1,1.5\n", {"det.csv:3:12", "line 2", "increasing time"}},
       {"duplicated", h + "r000000,S1,2.0\nr000000,S1,2.0\n", {"det.csv:3:12", "repeats the S1 of record r000000"}},
       {"field count", h + "r000000,S1\n", {"det.csv:2:1", "expected 3", "found 2"}},
+      {"semicolon rows", h + "r000000;S1;1.0\n", {"det.csv:2:1", "found 1", "looks ';'-separated"}},
       {"unknown site", "record_id,kind,time_s,site\nr000000,S1,1.0,mitra\n",
        {"det.csv:2:16", "site", "'mitra' is not a site", "did you mean 'mitral'"}},
       {"empty segment", seg + "r000000,mitral,1.0,1.0,S1\n", {"det.csv:2:", "end_s", "greater than start_s"}},
