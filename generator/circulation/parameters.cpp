@@ -63,6 +63,9 @@ CirculationParams default_circulation_params() {
   p.tricuspid = valve(7.0, 2.0, 0.02, 0.02, -2.0);
   p.aortic = valve(3.5, 1.5, 0.012, 0.012, 0.0);
   p.pulmonic = valve(3.5, 1.5, 0.012, 0.012, 0.0);
+  // The pulmonic leaflets need a small forward gradient to open, so the atrial kick into a stiff
+  // or failing right ventricle does not float them open before systole.
+  p.pulmonic.open_threshold_mmhg = 2.0;
   p.aorta = {0.35, 100.0};
   p.systemic_arteries = {1.2, 600.0};
   p.systemic_veins = {100.0, 2550.0};

@@ -46,9 +46,9 @@ struct ActivationTiming {
   double lv_electromechanical_delay_s = 0.045;  // Q to the onset of LV elastance rise
   double rv_extra_delay_s = 0.015;              // RV mechanical onset after LV at zero lv_rv_delay
   double atrial_electromechanical_delay_s = 0.070;  // P onset to atrial contraction
-  double ventricular_period_base_s = 0.37, ventricular_period_slope = 0.50;
+  double ventricular_period_base_s = 0.385, ventricular_period_slope = 0.50;
   double hill_tau1_fraction = 0.269, hill_tau2_fraction = 0.452;
-  double hill_m1 = 1.32, hill_m2 = 20.0;
+  double hill_m1 = 1.32, hill_m2 = 18.0;
   // RV contraction is shorter than the LV one (its ejection still lasts longer: low pulmonary
   // impedance); states multiply both scales (failure, exercise).
   double lv_duration_scale = 1.0, rv_duration_scale = 0.96;

@@ -98,9 +98,9 @@ EngineSetup map_subject_to_engine(const SubjectSpec& subject) {
       apply_compensation(s, e, hr_rest, 0.25, 450.0, 0.3);
       break;
     case State::rv_failure:
-      // Right heart failure most often follows pulmonary hypertension: PVR up to 5x.
-      apply_ventricular_failure(s, 1.0, c.rv, c.timing.rv_duration_scale, c.timing.rv_preload_duration_exponent, 0.45, 30.0);
-      c.pulmonary_resistance_mmhg_s_per_ml *= 1.0 + 4.0 * s;
+      // Right heart failure most often follows pulmonary hypertension: PVR up to 3x.
+      apply_ventricular_failure(s, 1.0, c.rv, c.timing.rv_duration_scale, c.timing.rv_preload_duration_exponent, 0.35, 60.0);
+      c.pulmonary_resistance_mmhg_s_per_ml *= 1.0 + 2.0 * s;
       apply_compensation(s, e, hr_rest, 0.2, 500.0, 0.15);
       break;
     case State::global_failure:
