@@ -51,6 +51,7 @@ motion = { rate_per_min = 60, clip = true, peak_fs = 100 }
 hum = { frequency_hz = 60, harmonics = 7, harmonic_step_db = 0, level_db = 60, drift = 0.95, drift_period_s = 0.5 }
 [noise.dropout]
 dropout = { rate_per_min = 600, duration_ms = [10, 60000], depth_db = -120 }
+sensor_white = { level_db = -60 }  # dropout alone adds nothing to scale to an SNR
 [noise.recording]
 recording = { file = "hiss.wav", level_db = 60, loop = true, random_offset = true }
 [noise.recording_once]
@@ -90,8 +91,8 @@ std::vector<Corner> corners() {
 
 // The other subject parameters at the low or the high end of their ranges.
 std::string parameter_extremes(bool high) {
-  return high ? "respiration_rate_per_min = 40\nrespiration_depth_mmhg = 20\nrsa_fraction = 0.3\n"
-                "lf_fraction = 0.3\nblood_volume_ml = 8000\npr_interval_ms = 320\nlv_rv_delay_ms = 150\n"
+  return high ? "respiration_rate_per_min = 40\nrespiration_depth_mmhg = 20\nrsa_fraction = 0.2\n"
+                "lf_fraction = 0.2\nblood_volume_ml = 8000\npr_interval_ms = 320\nlv_rv_delay_ms = 150\n"
                 "chest_wall_mm = 80\nsensor_gain_db = 40\nsource_variation = 1\n"
               : "respiration_rate_per_min = 4\nrespiration_depth_mmhg = 0\nrsa_fraction = 0\nlf_fraction = 0\n"
                 "blood_volume_ml = 2500\npr_interval_ms = 80\nlv_rv_delay_ms = -60\nchest_wall_mm = 3\n"
