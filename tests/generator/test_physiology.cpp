@@ -5,6 +5,7 @@
 #include <map>
 #include <numeric>
 
+#include "core/error.hpp"
 #include "generator/circulation/simulate.hpp"
 #include "generator/pipeline.hpp"
 #include "generator/sources/heart_sounds.hpp"
@@ -309,4 +310,16 @@ TEST_CASE("every state yields a record with finite samples and labels covering i
     REQUIRE(rec.hemodynamics.data.n_samples == 750);
     REQUIRE(rec.summary.heart_rate_bpm > 40);
   }
+}
+
+TEST_CASE("a subject outside the allowed box is an input error", "[physiology]") {
+  SubjectSpec s = subject(State::rest, 0.0);
+  s.sample_rate_hz = 500;
+  REQUIRE_THROWS_AS(synthesize_record(s), InputError);
+  s = subject(State::rest, 0.0);
+  s.sites.clear();
+  REQUIRE_THROWS_AS(synthesize_record(s), InputError);
+  s = subject(State::rest, 0.0);
+  s.params.chest_wall_mm = 0;
+  REQUIRE_THROWS_WITH(synthesize_record(s), Catch::Contains("chest_wall_mm"));
 }

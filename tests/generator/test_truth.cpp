@@ -5,6 +5,7 @@
 
 #include "generator/sources/heart_sounds.hpp"
 #include "generator/transmission/render.hpp"
+#include "generator/truth/hemodynamic_traces.hpp"
 #include "generator/truth/labels.hpp"
 #include "generator/truth/record_truth.hpp"
 #include "synthetic_circulation.hpp"
@@ -82,4 +83,23 @@ TEST_CASE("only events and beats inside the record window are kept; labels cover
   REQUIRE(truth.beats[0].a2p2_split_ms > 20);
   REQUIRE(truth.beats[0].a2p2_split_ms < 40);
   REQUIRE(truth.beats[0].s1_amplitude > truth.beats[0].s2_amplitude * 0.5);
+}
+
+TEST_CASE("hemodynamic traces: band-limited resampling aligned to the record grid", "[truth]") {
+  CirculationResult circ = test::synthetic_circulation({});
+  // A slow sine on an unaligned series start: the 250 Hz trace must sample it at k / 250 s.
+  circ.series.t0_s = -1.0003;
+  for (std::size_t k = 0; k < circ.series.size(); ++k)
+    circ.series.p_lv[k] = 50.0 + 20.0 * std::sin(2.0 * M_PI * 1.3 * circ.series.time_at(k));
+  HemodynamicTraces h = hemodynamic_traces(circ);
+  REQUIRE(h.sample_rate_hz == 250.0);
+  REQUIRE(h.names.size() == 12);
+  REQUIRE(h.names[0] == "lv_pressure");
+  REQUIRE(h.units[0] == "mmHg");
+  REQUIRE(h.data.n_samples == 500);  // 2 s at 250 Hz
+  for (std::size_t k = 0; k < h.data.n_samples; ++k) {
+    double expected = 50.0 + 20.0 * std::sin(2.0 * M_PI * 1.3 * k / 250.0);
+    // Linear interpolation of a 1.3 Hz sine at 250 Hz: error below 20 * (2 pi 1.3 / 250)^2 / 8.
+    REQUIRE(h.data.at(0, k) == Approx(expected).margin(0.01));
+  }
 }
