@@ -110,6 +110,11 @@ EngineSetup map_subject_to_engine(const SubjectSpec& subject) {
       break;
   }
   e.rhythm.heart_rate_bpm = std::min(e.rhythm.heart_rate_bpm, std::max(hr_rest, kMaxStateHeartRateBpm));
+  // Keep the state effects inside what the beat schedule accepts (check_rhythm_params), so a
+  // recipe at the edge of its ranges (PR 80 ms, 40 breaths/min, 20 mmHg swing) still makes a record.
+  e.rhythm.pr_interval_s = std::max(e.rhythm.pr_interval_s, 0.08);
+  e.rhythm.respiration_rate_per_min = std::min(e.rhythm.respiration_rate_per_min, 60.0);
+  e.rhythm.respiration_depth_mmhg = std::min(e.rhythm.respiration_depth_mmhg, 20.0);
   return e;
 }
 
