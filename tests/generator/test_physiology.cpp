@@ -11,6 +11,7 @@
 #include "generator/sources/heart_sounds.hpp"
 #include "generator/transmission/render.hpp"
 #include "generator/truth/record_truth.hpp"
+#include "noise/profile.hpp"
 #include "python_reference.hpp"
 
 using namespace stethogen;
@@ -322,4 +323,21 @@ TEST_CASE("a subject outside the allowed box is an input error", "[physiology]")
   s = subject(State::rest, 0.0);
   s.params.chest_wall_mm = 0;
   REQUIRE_THROWS_WITH(synthesize_record(s), Catch::Contains("chest_wall_mm"));
+}
+
+TEST_CASE("with a noise profile the noisy signal carries noise at the drawn SNR", "[physiology]") {
+  SubjectSpec s = subject(State::rest, 0.0);
+  s.params.duration_s = 3.0;
+  auto profile = std::make_shared<noise::NoiseProfile>();
+  profile->name = "white_only";
+  profile->sensor_white.enabled = true;
+  s.noise_profile = profile;
+  s.noise_profile_name = profile->name;
+  s.params.snr_db = 10.0;
+  Record rec = synthesize_record(s);
+  REQUIRE(rec.pcg.data != rec.pcg_clean.data);
+  REQUIRE(rec.summary.snr_target_db == 10.0);
+  // The achieved SNR is measured by the noise stage on the clean signal it was given.
+  REQUIRE(rec.summary.snr_achieved_db == Approx(10.0).margin(0.5));
+  for (float v : rec.pcg.data) REQUIRE(std::isfinite(v));
 }
