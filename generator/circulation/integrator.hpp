@@ -13,8 +13,8 @@
 namespace stethogen::gen {
 
 struct IntegratorSettings {
-  double abs_tolerance = 1e-6;
-  double rel_tolerance = 1e-6;
+  double abs_tolerance = 1e-5;
+  double rel_tolerance = 1e-5;
   double max_step_s = 0.005;       // keeps activation onsets and the sample grid well resolved
   double min_step_s = 1e-9;        // a smaller accepted step counts as a stall
   std::uint64_t max_steps = 2'000'000;
