@@ -27,6 +27,7 @@ int run(int argc, const char* const* argv) {
       add_inspect(root),
       add_verify(root),
       add_export(root),
+      add_validate(root),
       // verbs are appended here as they land
   };
 
