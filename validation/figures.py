@@ -149,6 +149,7 @@ def spectrogram(data, out_dir):
         if e["site"] == -1 and e["kind"] in ("M1", "A2"):
             ax.axvline(e["onset_s"], color="white", lw=0.6, ls=":")
     ax.set_ylim(0, 400)
+    ax.set_xlim(w["t0_s"], w["t0_s"] + len(x) / fs)
     ax.set_xlabel("time (s)")
     ax.set_ylabel("frequency (Hz)")
     ax.set_title(f"Spectrogram of S1 and S2 at the {w['sites'][site]} area (64 ms Hann window; dotted: M1, A2 onsets)")
