@@ -131,6 +131,7 @@ class RecordPipeline {
   RecordPipeline(const recipe::Recipe& recipe, RecordRange todo, unsigned threads,
                  std::function<Record(const SubjectSpec&)> synthesize)
       : recipe_(recipe), synthesize_(std::move(synthesize)), next_dispatch_(todo.begin), end_(todo.end),
+        next_write_(todo.begin),
         window_(2 * threads) {
     for (unsigned t = 0; t < threads; ++t) workers_.emplace_back([this] { work(); });
   }
@@ -205,7 +206,7 @@ class RecordPipeline {
   std::mutex mu_;
   std::condition_variable done_cv_, space_cv_;
   std::map<std::uint64_t, Outcome> results_;
-  std::uint64_t next_dispatch_, end_, next_write_ = 0;
+  std::uint64_t next_dispatch_, end_, next_write_;
   std::uint64_t window_;
   bool stopping_ = false;
   std::vector<std::thread> workers_;

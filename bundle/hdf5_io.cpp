@@ -17,6 +17,9 @@ std::recursive_mutex& lock() {
 void init() {
   static std::once_flag once;
   std::call_once(once, [] {
+    // HDF5's exit handler crashes closing a file whose flush failed (disk full); every file we
+    // keep is closed explicitly, so the handler is not needed.
+    H5dont_atexit();
     H5open();
     H5Eset_auto2(H5E_DEFAULT, nullptr, nullptr);
   });
@@ -56,8 +59,10 @@ std::string error_reason() {
   // The system's reason (errno text) is the most useful; otherwise the innermost message.
   for (const std::string& r : reasons)
     if (r.find("errno") != std::string::npos) {
-      auto pos = r.find("error message = ");
-      return pos == std::string::npos ? r : r.substr(pos + 16);
+      auto pos = r.find("error message = '");
+      if (pos == std::string::npos) return r;
+      auto end = r.find('\'', pos + 17);
+      return r.substr(pos + 17, end == std::string::npos ? std::string::npos : end - pos - 17);
     }
   for (const std::string& r : reasons)
     if (r.find("Fletcher32") != std::string::npos || r.find("filter") != std::string::npos)
@@ -154,7 +159,8 @@ void set_attr(hid_t obj, const std::string& name, const std::vector<std::string>
   Id t = vlen_string_type();
   std::vector<const char*> ptrs;
   for (const std::string& v : values) ptrs.push_back(v.c_str());
-  write_attr(obj, name, t, {values.size()}, ptrs.data());
+  static const char* const kNone = "";  // HDF5 wants a buffer even for zero elements
+  write_attr(obj, name, t, {values.size()}, ptrs.empty() ? &kNone : ptrs.data());
 }
 
 void set_attr_i32(hid_t obj, const std::string& name, std::int32_t v) { write_attr(obj, name, H5T_STD_I32LE, {}, &v); }
@@ -162,7 +168,8 @@ void set_attr_i64(hid_t obj, const std::string& name, std::int64_t v) { write_at
 void set_attr_u64(hid_t obj, const std::string& name, std::uint64_t v) { write_attr(obj, name, H5T_STD_U64LE, {}, &v); }
 void set_attr_f64(hid_t obj, const std::string& name, double v) { write_attr(obj, name, H5T_IEEE_F64LE, {}, &v); }
 void set_attr_i32s(hid_t obj, const std::string& name, const std::vector<std::int32_t>& values) {
-  write_attr(obj, name, H5T_STD_I32LE, {values.size()}, values.data());
+  static const std::int32_t kNone = 0;  // HDF5 wants a buffer even for zero elements
+  write_attr(obj, name, H5T_STD_I32LE, {values.size()}, values.empty() ? &kNone : values.data());
 }
 
 bool has_attr(hid_t obj, const std::string& name) { return H5Aexists(obj, name.c_str()) > 0; }

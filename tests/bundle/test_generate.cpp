@@ -1,0 +1,196 @@
+// generate end to end through the binary: schema read back by h5py, determinism across threads and
+// shards, merge refusals, and the safety rules (existing output, kill -9 + resume, full disk).
+#include <catch2/catch.hpp>
+
+#include <signal.h>
+#include <unistd.h>
+
+#include <chrono>
+#include <filesystem>
+#include <fstream>
+#include <regex>
+#include <thread>
+
+#include "run_helpers.hpp"
+#include "temp_dir.hpp"
+
+using namespace stethogen::test;
+namespace fs = std::filesystem;
+
+namespace {
+
+std::size_t count_scratch(const fs::path& workdir) {
+  std::size_t n = 0;
+  std::error_code ec;
+  for (const auto& e : fs::directory_iterator(workdir, ec))
+    if (std::regex_match(e.path().filename().string(), std::regex(R"(rec-\d+\.h5)"))) ++n;
+  return n;
+}
+
+// A longer variant of the small recipe, so a run can be interrupted part-way.
+fs::path longer_recipe(const fs::path& dir, int count) {
+  std::string text = read_bytes(small_recipe());
+  text = std::regex_replace(text, std::regex("count = 4"), "count = " + std::to_string(count));
+  text = std::regex_replace(text, std::regex("duration_s = 2"), "duration_s = 8");
+  fs::path p = dir / "longer.toml";
+  std::ofstream(p) << text;
+  return p;
+}
+
+}  // namespace
+
+TEST_CASE("generate writes a bundle that h5py reads with the documented schema", "[generate]") {
+  TempDir dir;
+  const fs::path out = dir.path() / "small.h5";
+  RunResult r = run(generate_cmd(small_recipe(), out, "--threads 2"));
+  INFO(r.output);
+  REQUIRE(r.exit_code == 0);
+  REQUIRE(fs::exists(out));
+  REQUIRE_FALSE(fs::exists(out.string() + ".partial"));
+  // h5py is the outside reader: every documented path, dtype and shape (tests/bundle/check_schema.py).
+  RunResult py = run(python() + " " + quote(source_dir() / "tests/bundle/check_schema.py") + " " + quote(out));
+  INFO(py.output);
+  REQUIRE(py.exit_code == 0);
+}
+
+TEST_CASE("integer sample formats pass the schema check", "[generate]") {
+  TempDir dir;
+  for (const std::string fmt : {"int16", "int24"}) {
+    std::string text = std::regex_replace(read_bytes(small_recipe()), std::regex("\"float32\""), "\"" + fmt + "\"");
+    const fs::path recipe = dir.path() / (fmt + ".toml");
+    std::ofstream(recipe) << text;
+    const fs::path out = dir.path() / (fmt + ".h5");
+    RunResult r = run(generate_cmd(recipe, out));
+    INFO(r.output);
+    REQUIRE(r.exit_code == 0);
+    RunResult py = run(python() + " " + quote(source_dir() / "tests/bundle/check_schema.py") + " " + quote(out));
+    INFO(py.output);
+    REQUIRE(py.exit_code == 0);
+  }
+}
+
+TEST_CASE("one thread and two threads give byte-identical bundles", "[generate]") {
+  TempDir dir;
+  REQUIRE(run(generate_cmd(small_recipe(), dir.path() / "t1.h5", "--threads 1")).exit_code == 0);
+  REQUIRE(run(generate_cmd(small_recipe(), dir.path() / "t2.h5", "--threads 2")).exit_code == 0);
+  REQUIRE(read_bytes(dir.path() / "t1.h5") == read_bytes(dir.path() / "t2.h5"));
+}
+
+TEST_CASE("three shards merged equal one run; merge refuses bad shard sets", "[generate][merge]") {
+  TempDir dir;
+  const fs::path whole = dir.path() / "whole.h5";
+  REQUIRE(run(generate_cmd(small_recipe(), whole)).exit_code == 0);
+  for (int k = 1; k <= 3; ++k) {
+    RunResult r = run(generate_cmd(small_recipe(), dir.path() / ("part-" + std::to_string(k) + ".h5"),
+                                   "--shard " + std::to_string(k) + "/3"));
+    INFO(r.output);
+    REQUIRE(r.exit_code == 0);
+  }
+  auto part = [&](int k) { return quote(dir.path() / ("part-" + std::to_string(k) + ".h5")); };
+  const fs::path merged = dir.path() / "merged.h5";
+  RunResult m = run(binary() + " merge " + part(3) + " " + part(1) + " " + part(2) + " -o " + quote(merged));
+  INFO(m.output);
+  REQUIRE(m.exit_code == 0);
+  // h5py compares every object and attribute (the raw layout of copied records may differ by a
+  // few bytes of HDF5 bookkeeping, so content, not bytes, is the contract for merge).
+  RunResult cmp = run(python() + " " + quote(source_dir() / "tests/bundle/compare_bundles.py") + " " +
+                      quote(merged) + " " + quote(whole));
+  INFO(cmp.output);
+  REQUIRE(cmp.exit_code == 0);
+
+  RunResult missing = run(binary() + " merge " + part(1) + " " + part(3) + " -o " + quote(dir.path() / "x.h5"));
+  REQUIRE(missing.exit_code == 2);
+  REQUIRE(missing.output.find("missing") != std::string::npos);
+  RunResult dup = run(binary() + " merge " + part(1) + " " + part(2) + " " + part(2) + " " + part(3) + " -o " +
+                      quote(dir.path() / "x.h5"));
+  REQUIRE(dup.exit_code == 2);
+  REQUIRE(dup.output.find("more than once") != std::string::npos);
+  // A shard of another recipe (different seed, so a different recipe hash).
+  std::string other = std::regex_replace(read_bytes(small_recipe()), std::regex("seed = 4242"), "seed = 4243");
+  std::ofstream(dir.path() / "other.toml") << other;
+  REQUIRE(run(generate_cmd(dir.path() / "other.toml", dir.path() / "other-1.h5", "--shard 1/3")).exit_code == 0);
+  RunResult foreign = run(binary() + " merge " + quote(dir.path() / "other-1.h5") + " " + part(2) + " " + part(3) +
+                          " -o " + quote(dir.path() / "x.h5"));
+  REQUIRE(foreign.exit_code == 2);
+  REQUIRE(foreign.output.find("different recipe") != std::string::npos);
+  REQUIRE_FALSE(fs::exists(dir.path() / "x.h5"));
+}
+
+TEST_CASE("an existing output is left untouched without --force", "[generate][safety]") {
+  TempDir dir;
+  const fs::path out = dir.path() / "small.h5";
+  std::ofstream(out) << "the user's own file";
+  RunResult r = run(generate_cmd(small_recipe(), out));
+  REQUIRE(r.exit_code == 2);
+  REQUIRE(r.output.find("--force") != std::string::npos);
+  REQUIRE(read_bytes(out) == "the user's own file");
+  REQUIRE(run(generate_cmd(small_recipe(), out, "--force")).exit_code == 0);
+  REQUIRE(read_bytes(out).rfind("\x89HDF", 0) == 0);
+}
+
+TEST_CASE("kill -9 leaves no final file and --resume completes an identical bundle", "[generate][safety]") {
+  TempDir dir;
+  const fs::path recipe = longer_recipe(dir.path(), 40);
+  const fs::path reference = dir.path() / "reference.h5";
+  REQUIRE(run(generate_cmd(recipe, reference, "--threads 2")).exit_code == 0);
+
+  const fs::path out = dir.path() / "run.h5";
+  const fs::path workdir = out.string() + ".partial";
+  pid_t pid = fork();
+  REQUIRE(pid >= 0);
+  if (pid == 0) {
+    setenv("SOURCE_DATE_EPOCH", "1700000000", 1);
+    execl(binary().c_str(), binary().c_str(), "generate", recipe.c_str(), "-o", out.c_str(), "--quiet", "--threads",
+          "2", static_cast<char*>(nullptr));
+    _exit(127);
+  }
+  // Wait until a few records are saved, then kill without warning.
+  auto deadline = std::chrono::steady_clock::now() + std::chrono::seconds(60);
+  while (count_scratch(workdir) < 3 && std::chrono::steady_clock::now() < deadline && !fs::exists(out))
+    std::this_thread::sleep_for(std::chrono::milliseconds(5));
+  kill(pid, SIGKILL);
+  int status = 0;
+  waitpid(pid, &status, 0);
+  REQUIRE(WIFSIGNALED(status));  // killed part-way, not finished
+  REQUIRE_FALSE(fs::exists(out));
+  REQUIRE(fs::is_directory(workdir));
+
+  RunResult again = run(generate_cmd(recipe, out));
+  REQUIRE(again.exit_code == 2);  // an interrupted run is there: neither resumed nor discarded silently
+  REQUIRE(again.output.find("--resume") != std::string::npos);
+  RunResult resumed = run(generate_cmd(recipe, out, "--resume --threads 2"));
+  INFO(resumed.output);
+  REQUIRE(resumed.exit_code == 0);
+  REQUIRE_FALSE(fs::exists(workdir));
+  REQUIRE(read_bytes(out) == read_bytes(reference));
+}
+
+TEST_CASE("SIGTERM stops cleanly and says how to resume", "[generate][safety]") {
+  TempDir dir;
+  const fs::path recipe = longer_recipe(dir.path(), 40);
+  const fs::path out = dir.path() / "run.h5";
+  const fs::path log = dir.path() / "log.txt";
+  RunResult r = run(generate_cmd(recipe, out, "--threads 2") + " > " + quote(log) + " 2>&1 & pid=$!; " +
+                    "for i in $(seq 1 6000); do n=$(ls " + quote(out.string() + ".partial") +
+                    " 2>/dev/null | grep -c \"^rec-\"); [ \"$n\" -ge 2 ] && break; sleep 0.01; done; " +
+                    "kill -TERM $pid; wait $pid; echo exit=$?");
+  INFO(r.output << read_bytes(log));
+  REQUIRE(r.output.find("exit=1") != std::string::npos);
+  REQUIRE(read_bytes(log).find("--resume") != std::string::npos);
+  REQUIRE_FALSE(fs::exists(out));
+  RunResult resumed = run(generate_cmd(recipe, out, "--resume"));
+  REQUIRE(resumed.exit_code == 0);
+  REQUIRE(fs::exists(out));
+}
+
+TEST_CASE("a full disk is a clear error and leaves no final file", "[generate][safety]") {
+  TempDir dir;
+  const fs::path out = dir.path() / "small.h5";
+  // ulimit -f (in 1024-byte blocks) caps every file the run writes, like a nearly full disk.
+  RunResult r = run("ulimit -f 64; " + generate_cmd(small_recipe(), out));
+  INFO(r.output);
+  REQUIRE(r.exit_code == 1);
+  REQUIRE(r.output.find("File too large") != std::string::npos);
+  REQUIRE(r.output.find("no output written") != std::string::npos);
+  REQUIRE_FALSE(fs::exists(out));
+}
