@@ -16,3 +16,8 @@ test: build
 
 clean:
 	rm -rf $(BUILD)
+
+# Regenerate out_examples/ (demo summary, WAVs, truth, baseline score, validation report).
+.PHONY: examples
+examples: build
+	STETHOGEN_BIN=$(BUILD)/stethogen scripts/examples.sh

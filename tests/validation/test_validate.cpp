@@ -95,3 +95,23 @@ TEST_CASE("validate refuses bad usage", "[validation]") {
   CHECK(run_cli({"validate", "--threads", "0"}) == cli::kExitUsage);
   CHECK(run_cli({"validate", "--no-such-option"}) == cli::kExitUsage);
 }
+
+TEST_CASE("without a usable Python the tables are written and the report says why", "[validation]") {
+  test::TempDir tmp;
+  validation::ValidateOptions options;
+  options.report_dir = tmp.path();
+  options.threads = 2;
+  options.python = (tmp.path() / "no-such-python").string();
+  const validation::ValidateOutcome outcome = validation::run_validation(options);
+  CHECK(outcome.figure_note.find("cannot import matplotlib") != std::string::npos);
+  CHECK(std::filesystem::exists(tmp.path() / "checks.csv"));
+  const std::string md = read_file(tmp.path() / "report.md");
+  CHECK(md.find("Figures were not drawn") != std::string::npos);
+  for (const std::string& f : validation::kFigureFiles) CHECK_FALSE(std::filesystem::exists(tmp.path() / f));
+  // The same results whatever the thread count (records are pure functions of their subject).
+  options.report_dir.reset();
+  options.threads = 1;
+  const validation::ValidateOutcome serial = validation::run_validation(options);
+  REQUIRE(serial.results.size() == outcome.results.size());
+  for (std::size_t i = 0; i < serial.results.size(); ++i) CHECK(serial.results[i].value == outcome.results[i].value);
+}
