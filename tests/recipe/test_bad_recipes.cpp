@@ -41,7 +41,7 @@ const std::vector<BadRecipe> kCorpus = {
     {"unknown_population_key", "8:1: population[0].heart_rate: unknown key (did you mean 'heart_rate_bpm'?)"},
     {"distribution_unknown_kind", "8:12: population[0].snr_db.unifrom: unknown key (did you mean 'uniform'?)"},
     {"sweep_unknown_axis", "8:34: sweep[0].grid.snr: unknown key (did you mean 'snr_db'?)"},
-    {"noise_profile_bad_key", "5:28: noise.ward.sensor_white.levl_db: unknown key (did you mean 'level_db'?)"},
+    {"noise_profile_bad_key", "5:18: noise.ward.sensor_white.levl_db: unknown key (did you mean 'level_db'?)"},
     // missing sections and keys
     {"missing_dataset", " missing [dataset] table (it needs at least name)"},
     {"missing_dataset_name", "1:1: dataset.name: missing (the dataset needs a name)"},
