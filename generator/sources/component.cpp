@@ -51,6 +51,32 @@ std::complex<double> SoundComponent::analytic(double time_s) const {
   return std::polar(e, 2.0 * std::numbers::pi * cycles);
 }
 
+void SoundComponent::render(double t_first_s, double rate_hz, std::size_t n, double weight,
+                            std::complex<double>* out) const {
+  constexpr std::size_t kBlock = 256;  // exact re-anchoring keeps the recurrences' drift ~1e-14
+  const double h = 1.0 / rate_hz;
+  const double decay = std::exp(-h / tau_s), chirp_decay = std::exp(-h / chirp_tau_s);
+  const double sweep_cycles = (f_start_hz - f_end_hz) * chirp_tau_s;
+  std::size_t i = 0;
+  while (i < n) {
+    double t = t_first_s + static_cast<double>(i) * h - start_s;
+    if (t <= 0) {
+      out[i++] = {0.0, 0.0};
+      continue;
+    }
+    double tail = std::exp(kEnvelopeOrder - t / tau_s);  // exp(k - x)
+    double chirp = std::exp(-t / chirp_tau_s);
+    for (std::size_t end = std::min(n, i + kBlock); i < end; ++i) {
+      t = t_first_s + static_cast<double>(i) * h - start_s;
+      double r = t / (kEnvelopeOrder * tau_s);
+      double cycles = f_end_hz * t + sweep_cycles * (1.0 - chirp);
+      out[i] = std::polar(weight * amplitude * r * r * tail, 2.0 * std::numbers::pi * cycles);
+      tail *= decay;
+      chirp *= chirp_decay;
+    }
+  }
+}
+
 double SoundComponent::support_end_s() const { return start_s + kSupportX * tau_s; }
 double SoundComponent::onset_s() const { return start_s + kOnsetX * tau_s; }
 double SoundComponent::peak_s() const { return start_s + kEnvelopeOrder * tau_s; }

@@ -90,18 +90,19 @@ Rendering render_sites(const std::vector<SoundComponent>& components, const std:
         std::fill(member.begin(), member.end(), Complex{});
         auto lo = static_cast<std::size_t>(std::max(0.0, std::floor((c.start_s + delay) * fs) - first));
         auto hi = std::min(len, static_cast<std::size_t>(std::ceil((c.support_end_s() + delay) * fs) - first) + 1);
-        for (std::size_t i = lo; i < hi; ++i)
-          member[i] = weight * c.analytic(static_cast<double>(first + static_cast<std::int64_t>(i)) / fs - delay);
+        if (hi > lo)
+          c.render(static_cast<double>(first + static_cast<std::int64_t>(lo)) / fs - delay, fs, hi - lo, weight,
+                   member.data() + lo);
         filter_in_place(path.filter, member.data(), len);
         for (std::size_t i = 0; i < len; ++i) {
-          envelope[i] = std::abs(member[i]);
+          envelope[i] = std::sqrt(std::norm(member[i]));  // not std::abs: hypot is slow
           sum[i] += member[i];
         }
         SoundTiming t = measure_envelope(envelope.data(), len, t_first, fs, kEnvelopeThreshold);
         out.component_timing[m][s] = t;
         member_timing.push_back(t);
       }
-      for (std::size_t i = 0; i < len; ++i) envelope[i] = std::abs(sum[i]);
+      for (std::size_t i = 0; i < len; ++i) envelope[i] = std::sqrt(std::norm(sum[i]));
       out.group_timing[g][s] =
           combine(member_timing, measure_envelope(envelope.data(), len, t_first, fs, kEnvelopeThreshold));
 

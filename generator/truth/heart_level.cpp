@@ -27,13 +27,13 @@ SoundTiming heart_level_group_timing(const SoundGroup& group, const std::vector<
   }
   if (!(end > begin)) return {};
   auto n = static_cast<std::size_t>((end - begin) * kHeartGridHz) + 2;
-  std::vector<double> envelope(n);
-  for (std::size_t i = 0; i < n; ++i) {
-    double t = begin + static_cast<double>(i) / kHeartGridHz;
-    std::complex<double> z{};
-    for (std::size_t m : group.members) z += components[m].analytic(t);
-    envelope[i] = std::abs(z);
+  std::vector<std::complex<double>> sum(n), part(n);
+  for (std::size_t m : group.members) {
+    components[m].render(begin, kHeartGridHz, n, 1.0, part.data());
+    for (std::size_t i = 0; i < n; ++i) sum[i] += part[i];
   }
+  std::vector<double> envelope(n);
+  for (std::size_t i = 0; i < n; ++i) envelope[i] = std::sqrt(std::norm(sum[i]));
   SoundTiming out = measure_envelope(envelope.data(), n, begin, kHeartGridHz, kEnvelopeThreshold);
   if (!out.valid()) return out;
   out.onset_s = INFINITY;

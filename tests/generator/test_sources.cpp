@@ -137,3 +137,12 @@ TEST_CASE("source variation is reproducible, keyed by the record and scaled by i
     REQUIRE(c.pitch == 1.0);
   }
 }
+
+TEST_CASE("block rendering equals the closed-form waveform", "[sources]") {
+  SoundComponent c = component_for(EventKind::A2, {});
+  const double fs = 4000, t0 = c.start_s - 0.01;
+  std::vector<std::complex<double>> z(2000);
+  c.render(t0, fs, z.size(), 0.5, z.data());
+  for (std::size_t i = 0; i < z.size(); ++i)
+    REQUIRE(std::abs(z[i] - 0.5 * c.analytic(t0 + i / fs)) < 1e-12 * c.amplitude);
+}
