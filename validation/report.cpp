@@ -109,6 +109,13 @@ std::string format_report(const std::vector<CheckResult>& results, bool with_fig
          "check uses: the published range, or mean +- 2 SD, or a value recalled from memory\n"
          "(marked) widened as docs/validation.md explains. Regenerate with\n"
          "`stethogen validate --report DIR`.\n";
+  if (failed) {
+    out << "\nFailed checks:\n\n";
+    for (const auto& r : results)
+      if (!r.pass)
+        out << fmt::format("- {}: {}, simulated {} (accepted {})\n", r.criterion.group, r.criterion.quantity,
+                           format_value(r.value), accepted_range(r.criterion));
+  }
   out << format_markdown_table(results);
   out << "\n## Figures\n\n";
   if (!with_figures) {
