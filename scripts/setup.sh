@@ -10,6 +10,7 @@ packages=(
   libcli11-dev nlohmann-json3-dev librandom123-dev libsoxr-dev libfftw3-dev libssl-dev libfmt-dev
   python3-numpy python3-scipy python3-h5py python3-soundfile python3-mir-eval python3-matplotlib
   clang libclang-rt-14-dev e2fsprogs util-linux
+  munge slurm-wlm
 )
 
 missing=()
