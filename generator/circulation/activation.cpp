@@ -29,15 +29,24 @@ double pulse_shape(const ActivationPulse& p, double t_s) {
 }
 
 ActivationPulse hill_pulse(double onset_s, double tau1_s, double tau2_s, double m1, double m2) {
-  // The peak lies between tau1 and tau2 for the exponents in use; golden-section search.
-  double a = 0.2 * tau1_s, b = 1.2 * tau2_s;
-  const double g = 0.5 * (std::sqrt(5.0) - 1.0);
-  for (int i = 0; i < 80; ++i) {
-    const double c = b - g * (b - a), d = a + g * (b - a);
-    if (hill_raw(c, tau1_s, tau2_s, m1, m2) > hill_raw(d, tau1_s, tau2_s, m1, m2)) b = d; else a = c;
+  // The peak depends only on tau1/tau2 and the exponents (time scales out), so it is found once
+  // on the unit time scale tau2 = 1 and reused while those stay the same.
+  thread_local double cached_ratio = -1, cached_m1 = -1, cached_m2 = -1, cached_peak = 1;
+  const double ratio = tau1_s / tau2_s;
+  if (ratio != cached_ratio || m1 != cached_m1 || m2 != cached_m2) {
+    // The peak lies between tau1 and tau2 for the exponents in use; golden-section search.
+    double a = 0.2 * ratio, b = 1.2;
+    const double g = 0.5 * (std::sqrt(5.0) - 1.0);
+    for (int i = 0; i < 80; ++i) {
+      const double c = b - g * (b - a), d = a + g * (b - a);
+      if (hill_raw(c, ratio, 1.0, m1, m2) > hill_raw(d, ratio, 1.0, m1, m2)) b = d; else a = c;
+    }
+    cached_ratio = ratio;
+    cached_m1 = m1;
+    cached_m2 = m2;
+    cached_peak = hill_raw(0.5 * (a + b), ratio, 1.0, m1, m2);
   }
-  const double peak = hill_raw(0.5 * (a + b), tau1_s, tau2_s, m1, m2);
-  return {onset_s, tau1_s, tau2_s, 1.0 / peak, m1, m2};
+  return {onset_s, tau1_s, tau2_s, 1.0 / cached_peak, m1, m2};
 }
 
 double ActivationPlan::activation(int chamber, double t_s) const {

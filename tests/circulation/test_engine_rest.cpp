@@ -138,7 +138,7 @@ TEST_CASE("the equations conserve blood volume", "[circulation]") {
   CHECK(total_volume_ml(x) == Approx(p.blood_volume_ml).margin(1e-6));
 }
 
-TEST_CASE("the same subject gives the same result; another record differs", "[circulation]") {
+TEST_CASE("the same subject gives the same result, another record differs", "[circulation]") {
   SubjectSpec s = subject(State::rest, 0.0, 3.0);
   const CirculationResult a = simulate_circulation(s), b = simulate_circulation(s);
   REQUIRE(a.series.size() == b.series.size());
