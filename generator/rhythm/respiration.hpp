@@ -22,9 +22,6 @@ class Respiration {
   bool inspiration(double t_s) const { return phase(t_s) < inspiration_fraction_; }
   // Depth shape in [0, 1]: 0 at end-expiration, 1 at end-inspiration; C1-continuous raised cosines.
   double swing(double phase) const;
-  double pleural_pressure_mmhg(double t_s) const {
-    return end_expiratory_mmhg_ - depth_mmhg_ * swing(phase(t_s));
-  }
 
   const std::vector<double>& breath_starts_s() const { return starts_; }
   double nominal_period_s() const { return period_s_; }
