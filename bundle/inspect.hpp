@@ -74,6 +74,15 @@ struct RecordDetail {
   // Events per kind (heart-level and per-site rows), in the canonical kind order.
   std::vector<std::pair<std::string, std::uint64_t>> event_counts;
   std::vector<Artifact> artifacts;
+  // The drawn subject parameters, planned again from the embedded recipe (recipe key, value,
+  // unit; NaN = the state's default). Empty with a note when the recipe cannot be rebuilt.
+  struct PlannedParam {
+    std::string key;
+    double value = 0;
+    std::string unit;
+  };
+  std::vector<PlannedParam> planned;
+  std::string planned_note;
 };
 
 // Throws InputError (exit 2) with a did-you-mean suggestion for an unknown record id.

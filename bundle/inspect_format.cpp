@@ -147,6 +147,13 @@ std::string format_record(const RecordDetail& d) {
                      r.sample_rate_hz, r.n_samples, sites, r.sensor);
   out += fmt::format("noise         profile {}, SNR target {} dB, achieved {} dB\n",
                      r.noise_profile.empty() ? "(none)" : r.noise_profile, number(r.snr_db), number(r.snr_achieved_db));
+  if (d.planned.empty()) {
+    out += fmt::format("\ndrawn parameters  {}\n", d.planned_note);
+  } else {
+    out += "\ndrawn parameters (planned again from the embedded recipe; - = the state's default)\n";
+    for (const auto& p : d.planned)
+      out += fmt::format("  {:<26} {:>10}{}\n", p.key, number(p.value), p.unit.empty() ? "" : " " + p.unit);
+  }
   if (d.parts.beats) {
     out += fmt::format("\nbeats         {} ({} starting in inspiration)\n", d.beats, d.inspiration_beats);
     out += fmt::format("  rr_s                 {}\n", span_text(d.rr_s));
@@ -199,6 +206,11 @@ nlohmann::json record_json(const RecordDetail& d) {
       {"snr_target_db", r.snr_db},
       {"snr_achieved_db", r.snr_achieved_db},
   };
+  if (!d.planned.empty()) {
+    nlohmann::json planned = nlohmann::json::object();
+    for (const auto& p : d.planned) planned[p.key] = p.value;
+    out["drawn_parameters"] = planned;
+  }
   if (d.parts.beats)
     out["beats"] = {{"count", d.beats},
                     {"inspiration", d.inspiration_beats},

@@ -92,6 +92,7 @@ std::string format_verify_report(const BundleReader& reader, const VerifyReport&
                      regenerated.empty() ? "" : " (" + regenerated + ")", status(FindingKind::mismatch));
   if (counts[FindingKind::incomplete] > 0)
     out += fmt::format("  incomplete  {} check(s) could not run\n", counts[FindingKind::incomplete]);
+  for (const std::string& note : report.notes) out += fmt::format("note: {}\n", note);
   for (const Finding& f : report.findings)
     out += fmt::format("{}: {}{}\n", name(f.kind), f.record_id.empty() ? "" : "record " + f.record_id + ": ", f.message);
   if (counts[FindingKind::mismatch] > 0)

@@ -45,6 +45,7 @@ struct VerifyReport {
   std::size_t schema_objects = 0;       // groups, datasets and attributes checked
   std::size_t records_read = 0;         // records whose every chunk was read
   std::vector<std::string> regenerated; // records regenerated and compared
+  std::vector<std::string> notes;       // informational, no effect on the exit code
   // 0 all passed, 1 corruption or mismatch, 2 a check could not run (input missing).
   int exit_code() const;
 };

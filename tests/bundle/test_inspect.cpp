@@ -62,6 +62,10 @@ TEST_CASE("inspect --json agrees with h5py's reading of the bundle", "[inspect]"
   CHECK(r["state"] == "lv_failure");
   CHECK(r["event_counts"] == want["events"]);
   CHECK(r["beats"]["count"] == want["beats"]);
+  // The re-planned parameters agree with the recipe (duration 3 s, severity 0.6) and the index.
+  CHECK(r["drawn_parameters"]["duration_s"] == 3.0);
+  CHECK(r["drawn_parameters"]["severity"] == 0.6);
+  CHECK(r["drawn_parameters"]["snr_db"] == r["snr_target_db"]);
 }
 
 TEST_CASE("inspect prints a readable summary and refuses unknown records", "[inspect]") {

@@ -136,3 +136,37 @@ TEST_CASE("verify of an unreadable file exits 2", "[verify]") {
   CHECK(test::run_stethogen({"verify", (dir / "not.h5").string()}).exit_code == 2);
   CHECK(test::run_stethogen({"verify", (dir / "absent.h5").string()}).exit_code == 2);
 }
+
+TEST_CASE("verify detects an edited embedded recipe", "[verify]") {
+  test::ScratchDir dir("verify-recipe");
+  REQUIRE(test::generate_bundle(dir, "tiny", test::tiny_recipe()).exit_code == 0);
+  const std::string bundle = (dir / "tiny.h5").string();
+  // Rewrites the recipe text through h5py, leaving recipe_sha256 as it was.
+  const char* edit = R"PY(
+import sys, h5py
+with h5py.File(sys.argv[1], "r+") as f:
+    f.attrs["recipe_toml"] = f.attrs["recipe_toml"].replace("seed = 11", "seed = 12")
+)PY";
+  REQUIRE(test::run_python(dir, "edit.py", edit, {bundle}).exit_code == 0);
+  test::ProcessResult out = test::run_stethogen({"verify", bundle, "--sample", "1", "--quiet"});
+  INFO(out.output);
+  CHECK(out.exit_code == 1);
+  CHECK(contains(out.output, "recipe_sha256 attribute"));
+}
+
+TEST_CASE("verify regenerates a key bundle under its public ids and skips it for a public one", "[verify]") {
+  test::ScratchDir dir("verify-split");
+  REQUIRE(test::generate_bundle(dir, "tiny", test::tiny_recipe()).exit_code == 0);
+  const std::string pub = (dir / "pub.h5").string(), key = (dir / "key.h5").string();
+  test::ProcessResult split = test::run_stethogen({"split", (dir / "tiny.h5").string(), "--public", pub, "--key", key});
+  INFO(split.output);
+  REQUIRE(split.exit_code == 0);
+  test::ProcessResult k = test::run_stethogen({"verify", key, "--sample", "2", "--quiet"});
+  INFO(k.output);
+  CHECK(k.exit_code == 0);
+  CHECK(contains(k.output, "2 records compared bit for bit"));
+  test::ProcessResult p = test::run_stethogen({"verify", pub, "--quiet"});
+  INFO(p.output);
+  CHECK(p.exit_code == 0);
+  CHECK(contains(p.output, "regeneration does not apply"));
+}
