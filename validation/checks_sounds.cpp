@@ -141,6 +141,11 @@ std::vector<CheckResult> sound_timing_checks(const Cohort& cohort) {
                            duration_ms(r, k)));
   out.push_back(evaluate(memory_range(g, "S3 onset after A2 onset", "ms", 130, 180, "Abrams 1978, JAMA 239:2790"),
                          onset_gap_ms(r, EventKind::A2, EventKind::S3)));
+  // Where an S3 is heard: moderate LV failure (severity 0.5 of the failure recipe's LV sweep).
+  const auto& failure = cohort.of("failure");
+  out.push_back(evaluate(memory_range(g, "S3 onset after A2 onset, LV failure severity 0.5", "ms", 130, 180,
+                                      "Abrams 1978, JAMA 239:2790"),
+                         onset_gap_ms(failure.at(failure.size() / 3 / 2).record, EventKind::A2, EventKind::S3)));
   out.push_back(evaluate(memory_range(g, "S3 dominant frequency", "Hz", 25, 50, "Abrams 1978, JAMA 239:2790"),
                          component_mean(run, cs, EventKind::S3, dominant_frequency_hz)));
   // S4 precedes the S1 of the next beat: the S4 of beat b against the M1 of beat b.
