@@ -76,7 +76,7 @@ TEST_CASE("one thread and two threads give byte-identical bundles", "[generate]"
   REQUIRE(read_bytes(dir.path() / "t1.h5") == read_bytes(dir.path() / "t2.h5"));
 }
 
-TEST_CASE("three shards merged equal one run; merge refuses bad shard sets", "[generate][merge]") {
+TEST_CASE("three shards merged equal one run and merge refuses bad shard sets", "[generate][merge]") {
   TempDir dir;
   const fs::path whole = dir.path() / "whole.h5";
   REQUIRE(run(generate_cmd(small_recipe(), whole)).exit_code == 0);
