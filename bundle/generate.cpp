@@ -257,6 +257,9 @@ GenerateResult generate(const GenerateOptions& options) {
   const BundleAttributes attributes = run_attributes(recipe, options.shard);
   const bool skip_failures = recipe.dataset.on_record_error == FailurePolicy::skip;
 
+  // Before any work: --force replaces a file, never a directory (the final rename would fail).
+  if (fs::is_directory(output))
+    throw InputError(fmt::format("{}: is a directory; -o must name the bundle file to write", output.string()));
   if (fs::exists(output) && !options.force)
     throw InputError(fmt::format("{}: output exists; pass --force to replace it", output.string()));
   if (output.has_parent_path() && !fs::is_directory(output.parent_path()))
