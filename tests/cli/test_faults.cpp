@@ -136,11 +136,9 @@ TEST_CASE("a target path that is a directory is refused and the directory kept",
   }
 }
 
-// Known bug, reported for bundle/generate.cpp: with --force and a directory as -o, generate
-// synthesises every record before the final rename fails ("Is a directory"), leaves the run
-// directory OUT.partial behind and advises to "free space" and --resume, which fails again.
-// It should refuse the directory before any work. [!mayfail] until that lands.
-TEST_CASE("generate --force onto a directory refuses before any work and leaves nothing", "[faults][!mayfail]") {
+// generate --force onto a directory used to synthesise every record before the final rename
+// failed, leaving OUT.partial behind; it must refuse the directory before any work.
+TEST_CASE("generate --force onto a directory refuses before any work and leaves nothing", "[faults]") {
   test::TempDir dir;
   std::ofstream(dir.path() / "night.toml") << tiny_recipe(2);
   fs::create_directory(dir.path() / "taken.h5");
@@ -150,9 +148,9 @@ TEST_CASE("generate --force onto a directory refuses before any work and leaves 
   const RunResult r = run_stethogen(dir.path(), {"generate", "night.toml", "-o", "taken.h5", "--force", "--quiet"});
   require_clear_error(r, "taken.h5");
   CHECK(r.exit_code == 2);
-  // What the user had is kept in any case; this holds today.
+  // What the user had is kept.
   for (const auto& [name, content] : before) CHECK(test::read_text(dir.path() / name) == content);
-  // Nothing left behind: fails today (taken.h5.partial/ with the synthesised records).
+  // Nothing left behind (no taken.h5.partial/ with synthesised records).
   CHECK(entries(dir.path()) == listing);
 }
 
