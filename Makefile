@@ -21,3 +21,7 @@ clean:
 .PHONY: examples
 examples: build
 	STETHOGEN_BIN=$(BUILD)/stethogen scripts/examples.sh
+
+# Benchmark (docs/performance.md): stage timings, thread scaling, peak memory, Python reference.
+bench:
+	BUILD=$(abspath $(BUILD)) scripts/bench.sh

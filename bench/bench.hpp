@@ -1,0 +1,46 @@
+// The benchmark (make bench, docs/performance.md): stage timings, thread scaling, peak memory and
+// the side-by-side Python reference, for the demo settings of bench/bench.toml.
+#pragma once
+
+#include <cstdint>
+#include <string>
+#include <vector>
+
+#include "core/subject.hpp"
+#include "recipe/recipe.hpp"
+
+namespace stethogen::bench {
+
+// CPU time of the calling thread (s): immune to other processes on a shared machine.
+double thread_cpu_s();
+
+// bench/bench.toml with COUNT and DURATION substituted.
+std::string bench_recipe_text(const std::string& source_dir, std::uint64_t count, double duration_s);
+recipe::Recipe bench_recipe(const std::string& source_dir, std::uint64_t count, double duration_s);
+
+// CPU seconds per stage, summed over records.
+struct StageTimes {
+  double rhythm = 0, circulation = 0, sources = 0, transmission = 0, noise = 0, output = 0, truth = 0, writing = 0;
+  double pipeline = 0;  // synthesize_record as a whole
+  double audio_s = 0;   // recorded seconds
+  double simulated_s = 0;  // seconds the ODE covered (run-in + series)
+  std::uint64_t ode_steps = 0, rhs_evaluations = 0;
+  double run_in_simulated_s = 0;
+  std::uint64_t records = 0;
+};
+StageTimes time_stages(const recipe::Recipe& recipe, std::uint64_t records, const std::string& scratch_dir);
+
+// A child process's wall time, CPU time and peak resident memory.
+struct ProcessRun {
+  double wall_s = 0, cpu_s = 0;
+  long max_rss_kib = 0;
+  int exit_code = -1;
+};
+ProcessRun run_process(const std::vector<std::string>& argv);
+
+// One record through validation/reference_model.py; prints the comparison, returns false when
+// the cross-check fails.
+bool compare_with_reference(const recipe::Recipe& recipe, const std::string& source_dir, const std::string& python,
+                            const std::string& scratch_dir);
+
+}  // namespace stethogen::bench

@@ -1,0 +1,111 @@
+// stethogen_bench: the benchmark of docs/performance.md (make bench). CPU times come from
+// CLOCK_THREAD_CPUTIME_ID and wait4's rusage, so other load on the machine moves them little.
+#include <unistd.h>
+
+#include <filesystem>
+#include <fstream>
+#include <thread>
+
+#include <CLI/CLI.hpp>
+#include <fmt/format.h>
+
+#include "bench/bench.hpp"
+
+namespace fs = std::filesystem;
+using namespace stethogen;
+
+namespace {
+
+void print_stages(const bench::StageTimes& t) {
+  fmt::print("Stages ({} records of {:.0f} s, 4 sites, 4 kHz, noise profile 'common'; thread CPU time):\n",
+             t.records, t.audio_s / static_cast<double>(t.records));
+  fmt::print("  {:<14} {:>10} {:>12}\n", "stage", "ms/record", "x real time");
+  const auto row = [&](const char* name, double cpu) {
+    fmt::print("  {:<14} {:>10.2f} {:>12.0f}\n", name, 1e3 * cpu / static_cast<double>(t.records), t.audio_s / cpu);
+  };
+  row("rhythm", t.rhythm);
+  row("circulation", t.circulation);
+  row("sources", t.sources);
+  row("transmission", t.transmission);
+  row("noise", t.noise);
+  row("output stage", t.output);
+  row("truth", t.truth);
+  row("sum of stages", t.rhythm + t.circulation + t.sources + t.transmission + t.noise + t.output + t.truth);
+  row("pipeline", t.pipeline);
+  row("HDF5 writing", t.writing);
+  row("pipeline+write", t.pipeline + t.writing);
+  fmt::print("  ODE: {:.0f} steps and {:.0f} rhs evaluations per simulated second ({:.1f} s simulated per record, "
+             "{:.1f} s of it run-in)\n",
+             static_cast<double>(t.ode_steps) / t.simulated_s, static_cast<double>(t.rhs_evaluations) / t.simulated_s,
+             t.simulated_s / static_cast<double>(t.records), t.run_in_simulated_s / static_cast<double>(t.records));
+}
+
+bench::ProcessRun generate(const std::string& binary, const std::string& source, const std::string& scratch,
+                           std::uint64_t count, double duration, unsigned threads) {
+  const std::string recipe_path = scratch + fmt::format("/bench_{}_{}.toml", count, duration);
+  std::ofstream(recipe_path) << bench::bench_recipe_text(source, count, duration);
+  const std::string out = scratch + "/bench_out.h5";
+  bench::ProcessRun r = bench::run_process({binary, "generate", recipe_path, "-o", out, "--threads",
+                                            std::to_string(threads), "--force", "--quiet"});
+  if (r.exit_code != 0) throw std::runtime_error(fmt::format("{} generate exited with {}", binary, r.exit_code));
+  fs::remove(out);
+  return r;
+}
+
+}  // namespace
+
+int main(int argc, char** argv) {
+  CLI::App app{"stethogen benchmark (docs/performance.md)"};
+  std::string source = STETHOGEN_SOURCE_DIR, binary, python = "/usr/bin/python3", scratch;
+  std::uint64_t stage_records = 5, thread_records = 8;
+  double memory_duration_s = 5.0;
+  std::vector<std::uint64_t> memory_counts{100, 1000};
+  bool skip_reference = false, skip_processes = false;
+  app.add_option("--source", source, "source tree (for bench/bench.toml and validation/)");
+  app.add_option("--binary", binary, "stethogen executable for the thread and memory runs")->required();
+  app.add_option("--python", python, "interpreter with numpy and scipy");
+  app.add_option("--scratch", scratch, "directory for temporary files (default: a new one under /tmp)");
+  app.add_option("--records", stage_records, "records for the stage timings");
+  app.add_option("--thread-records", thread_records, "30 s records for the 1- and 2-thread runs");
+  app.add_option("--memory-counts", memory_counts, "record counts of the peak-memory runs");
+  app.add_option("--memory-duration", memory_duration_s, "record length (s) of the peak-memory runs");
+  app.add_flag("--skip-reference", skip_reference, "leave out the Python side-by-side run");
+  app.add_flag("--skip-processes", skip_processes, "leave out the thread and memory runs");
+  CLI11_PARSE(app, argc, argv);
+  try {
+    if (scratch.empty()) scratch = fmt::format("/tmp/stethogen_bench_{}", ::getpid());
+    fs::create_directories(scratch);
+    double load[3] = {0, 0, 0};
+    if (getloadavg(load, 3) > 0) fmt::print("Machine: {} cores, load average {:.1f}\n", std::thread::hardware_concurrency(), load[0]);
+
+    print_stages(bench::time_stages(bench::bench_recipe(source, stage_records, 30.0), stage_records, scratch));
+    bool ok = true;
+    if (!skip_reference)
+      ok = bench::compare_with_reference(bench::bench_recipe(source, 1, 30.0), source, python, scratch);
+    if (!skip_processes) {
+      fmt::print("\nstethogen generate ({} records of 30 s):\n", thread_records);
+      double rate[3] = {0, 0, 0};
+      for (unsigned threads : {1u, 2u}) {
+        bench::ProcessRun r = generate(binary, source, scratch, thread_records, 30.0, threads);
+        rate[threads] = static_cast<double>(thread_records) / r.wall_s;
+        fmt::print("  --threads {}: {:.2f} records/s (wall {:.2f} s, CPU {:.2f} s, {:.0f}x real time per CPU second, "
+                   "max RSS {:.1f} MiB)\n",
+                   threads, rate[threads], r.wall_s, r.cpu_s, 30.0 * static_cast<double>(thread_records) / r.cpu_s,
+                   static_cast<double>(r.max_rss_kib) / 1024.0);
+      }
+      fmt::print("  2 threads / 1 thread: {:.2f}x (wall clock; depends on what else the machine runs)\n",
+                 rate[2] / rate[1]);
+      fmt::print("\nPeak memory (stethogen generate --threads 2, records of {:.0f} s):\n", memory_duration_s);
+      for (std::uint64_t count : memory_counts) {
+        bench::ProcessRun r = generate(binary, source, scratch, count, memory_duration_s, 2);
+        fmt::print("  {:>5} records: max RSS {:.1f} MiB, {:.2f} records/s, CPU {:.2f} s\n", count,
+                   static_cast<double>(r.max_rss_kib) / 1024.0, static_cast<double>(count) / r.wall_s, r.cpu_s);
+      }
+    }
+    fs::remove_all(scratch);
+    return ok ? 0 : 1;
+  } catch (const std::exception& e) {
+    fmt::print(stderr, "stethogen_bench: {}\n", e.what());
+    return 2;
+  }
+}
