@@ -51,12 +51,41 @@ std::complex<double> SoundComponent::analytic(double time_s) const {
   return std::polar(e, 2.0 * std::numbers::pi * cycles);
 }
 
+namespace {
+
+// exp(i d) for |d| <= kMaxSeriesAngle by its Taylor series: the first omitted term, d^12 / 12!,
+// is below 1e-17 there, so this is exact to double rounding and far cheaper than sincos.
+constexpr double kMaxSeriesAngle = 0.25;
+std::complex<double> small_rotation(double d) {
+  // Horner form with the factorial ratios as reciprocals (multiplications, not divisions).
+  constexpr double k2 = 1.0 / 2, k12 = 1.0 / 12, k30 = 1.0 / 30, k56 = 1.0 / 56, k90 = 1.0 / 90;
+  constexpr double k6 = 1.0 / 6, k20 = 1.0 / 20, k42 = 1.0 / 42, k72 = 1.0 / 72, k110 = 1.0 / 110;
+  const double d2 = d * d;
+  const double c = 1.0 - d2 * k2 * (1.0 - d2 * k12 * (1.0 - d2 * k30 * (1.0 - d2 * k56 * (1.0 - d2 * k90))));
+  const double s = d * (1.0 - d2 * k6 * (1.0 - d2 * k20 * (1.0 - d2 * k42 * (1.0 - d2 * k72 * (1.0 - d2 * k110)))));
+  return {c, s};
+}
+
+// Plain complex product: std::complex's operator* adds a NaN-recovery branch (C99 Annex G)
+// that the finite values here never need.
+std::complex<double> multiply(std::complex<double> a, std::complex<double> b) {
+  return {a.real() * b.real() - a.imag() * b.imag(), a.real() * b.imag() + a.imag() * b.real()};
+}
+
+}  // namespace
+
 void SoundComponent::render(double t_first_s, double rate_hz, std::size_t n, double weight,
                             std::complex<double>* out) const {
   constexpr std::size_t kBlock = 256;  // exact re-anchoring keeps the recurrences' drift ~1e-14
   const double h = 1.0 / rate_hz;
   const double decay = std::exp(-h / tau_s), chirp_decay = std::exp(-h / chirp_tau_s);
   const double sweep_cycles = (f_start_hz - f_end_hz) * chirp_tau_s;
+  // The phase advances by 2 pi (f_end h + sweep chirp (1 - chirp_decay)) per sample: a fixed
+  // carrier rotation times a small chirp rotation (at most pi f_start h for chirp_tau = 2 tau).
+  const std::complex<double> carrier = std::polar(1.0, 2.0 * std::numbers::pi * f_end_hz * h);
+  const double chirp_step = 2.0 * std::numbers::pi * sweep_cycles * (1.0 - chirp_decay);
+  const bool by_rotation = std::fabs(chirp_step) <= kMaxSeriesAngle;
+  const double inv_rise = 1.0 / (kEnvelopeOrder * tau_s), scale = weight * amplitude;
   std::size_t i = 0;
   while (i < n) {
     double t = t_first_s + static_cast<double>(i) * h - start_s;
@@ -66,11 +95,15 @@ void SoundComponent::render(double t_first_s, double rate_hz, std::size_t n, dou
     }
     double tail = std::exp(kEnvelopeOrder - t / tau_s);  // exp(k - x)
     double chirp = std::exp(-t / chirp_tau_s);
+    std::complex<double> phasor =
+        std::polar(1.0, 2.0 * std::numbers::pi * (f_end_hz * t + sweep_cycles * (1.0 - chirp)));
     for (std::size_t end = std::min(n, i + kBlock); i < end; ++i) {
       t = t_first_s + static_cast<double>(i) * h - start_s;
-      double r = t / (kEnvelopeOrder * tau_s);
-      double cycles = f_end_hz * t + sweep_cycles * (1.0 - chirp);
-      out[i] = std::polar(weight * amplitude * r * r * tail, 2.0 * std::numbers::pi * cycles);
+      double r = t * inv_rise;
+      if (!by_rotation)
+        phasor = std::polar(1.0, 2.0 * std::numbers::pi * (f_end_hz * t + sweep_cycles * (1.0 - chirp)));
+      out[i] = (scale * r * r * tail) * phasor;
+      if (by_rotation) phasor = multiply(phasor, multiply(carrier, small_rotation(chirp_step * chirp)));
       tail *= decay;
       chirp *= chirp_decay;
     }

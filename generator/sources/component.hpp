@@ -37,7 +37,7 @@ struct SoundComponent {
   double instantaneous_frequency_hz(double time_s) const;
   double support_end_s() const;
   // weight * analytic(t_first + i / rate) for i in [0, n), the same values as analytic() (to
-  // rounding) with the exponentials advanced by recurrence, re-anchored every block.
+  // rounding) with the exponentials and the phase advanced by recurrence, re-anchored every block.
   void render(double t_first_s, double rate_hz, std::size_t n, double weight, std::complex<double>* out) const;
   // Heart-level truth in closed form (threshold crossings of the envelope).
   double onset_s() const;

@@ -87,8 +87,19 @@ void FilterCascade::append(const FilterCascade& other) {
 
 template <typename T>
 void filter_in_place(const FilterCascade& cascade, T* data, std::size_t n) {
+  // Section by section over the whole buffer; first-order sections (b2 = a2 = 0, the Butterworth
+  // first-order designs) skip the second state, whose value would be exactly zero.
   for (const Biquad& s : cascade.sections) {
     T z1{}, z2{};
+    if (s.b2 == 0.0 && s.a2 == 0.0) {
+      for (std::size_t i = 0; i < n; ++i) {
+        T x = data[i];
+        T y = s.b0 * x + z1;
+        z1 = s.b1 * x - s.a1 * y;
+        data[i] = y;
+      }
+      continue;
+    }
     for (std::size_t i = 0; i < n; ++i) {
       T x = data[i];
       T y = s.b0 * x + z1;

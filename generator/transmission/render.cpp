@@ -86,15 +86,18 @@ Rendering render_sites(const std::vector<SoundComponent>& components, const std:
         const SoundComponent& c = components[m];
         int ci = component_index(c.kind);
         double delay = path.delay_s[ci], weight = path.weight[ci];
-        // Evaluate only on the component's own support; zero elsewhere.
-        std::fill(member.begin(), member.end(), Complex{});
-        auto lo = static_cast<std::size_t>(std::max(0.0, std::floor((c.start_s + delay) * fs) - first));
+        // Evaluate only on the component's own support, zero after it. Before it the filtered
+        // signal stays exactly zero (zero state, zero input), so filtering starts at lo.
+        auto lo = std::min(len, static_cast<std::size_t>(std::max(0.0, std::floor((c.start_s + delay) * fs) - first)));
         auto hi = std::min(len, static_cast<std::size_t>(std::ceil((c.support_end_s() + delay) * fs) - first) + 1);
+        hi = std::max(hi, lo);
         if (hi > lo)
           c.render(static_cast<double>(first + static_cast<std::int64_t>(lo)) / fs - delay, fs, hi - lo, weight,
                    member.data() + lo);
-        filter_in_place(path.filter, member.data(), len);
-        for (std::size_t i = 0; i < len; ++i) {
+        std::fill(member.begin() + static_cast<std::ptrdiff_t>(hi), member.end(), Complex{});
+        filter_in_place(path.filter, member.data() + lo, len - lo);
+        std::fill(envelope.begin(), envelope.begin() + static_cast<std::ptrdiff_t>(lo), 0.0);
+        for (std::size_t i = lo; i < len; ++i) {
           envelope[i] = std::sqrt(std::norm(member[i]));  // not std::abs: hypot is slow
           sum[i] += member[i];
         }
