@@ -2,6 +2,7 @@
 // CLOCK_THREAD_CPUTIME_ID and wait4's rusage, so other load on the machine moves them little.
 #include <unistd.h>
 
+#include <cstdio>
 #include <filesystem>
 #include <fstream>
 #include <thread>
@@ -72,6 +73,7 @@ int main(int argc, char** argv) {
   app.add_flag("--skip-reference", skip_reference, "leave out the Python side-by-side run");
   app.add_flag("--skip-processes", skip_processes, "leave out the thread and memory runs");
   CLI11_PARSE(app, argc, argv);
+  std::setvbuf(stdout, nullptr, _IOLBF, 0);  // progress visible when piped to a file
   try {
     if (scratch.empty()) scratch = fmt::format("/tmp/stethogen_bench_{}", ::getpid());
     fs::create_directories(scratch);
