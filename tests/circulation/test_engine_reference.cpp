@@ -9,6 +9,8 @@
 #include <fstream>
 #include <sstream>
 
+#include <unistd.h>
+
 #include <nlohmann/json.hpp>
 
 #include "engine_helpers.hpp"
@@ -27,7 +29,9 @@ std::string env_or(const char* name, const char* fallback) {
 }
 
 nlohmann::json run_reference(const std::string& case_json) {
-  const auto dir = std::filesystem::temp_directory_path() / "stethogen-circulation-reference";
+  // One folder per process: ctest runs the reference cases in parallel.
+  const auto dir = std::filesystem::temp_directory_path() /
+                   ("stethogen-circulation-reference-" + std::to_string(::getpid()));
   std::filesystem::create_directories(dir);
   const auto case_path = dir / "case.json", out_path = dir / "out.json";
   std::ofstream(case_path) << case_json;
