@@ -204,11 +204,13 @@ TEST_CASE("a recipe changed during --resume is refused and the finished records 
   test::TempDir dir;
   const fs::path recipe = dir.path() / "night.toml";
   std::ofstream(recipe) << tiny_recipe(400);
-  // Interrupt a run once its first records are on disk (SIGINT: finish in-flight records, stop).
+  // Interrupt a run once its first records are on disk (SIGTERM: finish in-flight records, stop).
+  // The binary is the background job itself, so $! is its pid; SIGTERM, not SIGINT, because a
+  // non-interactive shell starts background jobs with SIGINT ignored.
   const std::string script = fmt::format(
-      "cd {} && {} generate night.toml -o night.h5 --threads 1 --quiet </dev/null >run.log 2>&1 & pid=$!; "
+      "cd {} || exit 1; {} generate night.toml -o night.h5 --threads 1 --quiet </dev/null >run.log 2>&1 & pid=$!; "
       "for i in $(seq 1 3000); do ls night.h5.partial/rec-*.h5 >/dev/null 2>&1 && break; sleep 0.02; done; "
-      "kill -INT $pid; wait $pid; echo $? > status.txt",
+      "kill -TERM $pid; wait $pid; echo $? > status.txt",
       test::shell_quote(dir.path().string()), test::shell_quote(std::getenv("STETHOGEN_BINARY")));
   REQUIRE(std::system(script.c_str()) == 0);
   INFO(test::read_text(dir.path() / "run.log"));
