@@ -43,4 +43,7 @@ ProcessRun run_process(const std::vector<std::string>& argv);
 bool compare_with_reference(const recipe::Recipe& recipe, const std::string& source_dir, const std::string& python,
                             const std::string& scratch_dir);
 
+// Record 0's engine run with another step limit and tolerance against the defaults.
+void compare_engine_settings(const recipe::Recipe& recipe, double max_step_s, double tolerance);
+
 }  // namespace stethogen::bench

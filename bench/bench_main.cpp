@@ -62,6 +62,7 @@ int main(int argc, char** argv) {
   double memory_duration_s = 5.0;
   std::vector<std::uint64_t> memory_counts{100, 1000};
   bool skip_reference = false, skip_processes = false;
+  double engine_max_step_ms = 0, engine_tolerance = 1e-5;
   app.add_option("--source", source, "source tree (for bench/bench.toml and validation/)");
   app.add_option("--binary", binary, "stethogen executable for the thread and memory runs")->required();
   app.add_option("--python", python, "interpreter with numpy and scipy");
@@ -72,6 +73,9 @@ int main(int argc, char** argv) {
   app.add_option("--memory-duration", memory_duration_s, "record length (s) of the peak-memory runs");
   app.add_flag("--skip-reference", skip_reference, "leave out the Python side-by-side run");
   app.add_flag("--skip-processes", skip_processes, "leave out the thread and memory runs");
+  app.add_option("--engine-max-step-ms", engine_max_step_ms,
+                 "also run record 0's engine with this step limit (and --engine-tolerance) against the defaults");
+  app.add_option("--engine-tolerance", engine_tolerance, "absolute and relative tolerance for --engine-max-step-ms");
   CLI11_PARSE(app, argc, argv);
   std::setvbuf(stdout, nullptr, _IOLBF, 0);  // progress visible when piped to a file
   try {
@@ -81,6 +85,8 @@ int main(int argc, char** argv) {
     if (getloadavg(load, 3) > 0) fmt::print("Machine: {} cores, load average {:.1f}\n", std::thread::hardware_concurrency(), load[0]);
 
     print_stages(bench::time_stages(bench::bench_recipe(source, stage_records, 30.0), stage_records, scratch));
+    if (engine_max_step_ms > 0)
+      bench::compare_engine_settings(bench::bench_recipe(source, 1, 30.0), 1e-3 * engine_max_step_ms, engine_tolerance);
     bool ok = true;
     if (!skip_reference)
       ok = bench::compare_with_reference(bench::bench_recipe(source, 1, 30.0), source, python, scratch);
