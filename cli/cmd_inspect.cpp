@@ -12,6 +12,12 @@
 namespace stethogen::cli {
 namespace {
 
+// Names read from a file written by another program may be invalid UTF-8: JSON output replaces
+// such bytes (U+FFFD) instead of failing with a serializer error.
+std::string to_json_text(const nlohmann::json& j) {
+  return j.dump(2, ' ', false, nlohmann::json::error_handler_t::replace) + "\n";
+}
+
 struct InspectArgs {
   std::string bundle;
   std::string record;
@@ -22,10 +28,10 @@ int run_inspect(const InspectArgs& args) {
   const bundle::BundleReader reader(args.bundle);
   if (!args.record.empty()) {
     const bundle::RecordDetail detail = bundle::describe_record(reader, args.record);
-    fmt::print("{}", args.json ? bundle::record_json(detail).dump(2) + "\n" : bundle::format_record(detail));
+    fmt::print("{}", args.json ? to_json_text(bundle::record_json(detail)) : bundle::format_record(detail));
   } else {
     const bundle::DatasetSummary summary = bundle::summarize_dataset(reader);
-    fmt::print("{}", args.json ? bundle::summary_json(summary).dump(2) + "\n" : bundle::format_summary(summary));
+    fmt::print("{}", args.json ? to_json_text(bundle::summary_json(summary)) : bundle::format_summary(summary));
   }
   return kExitOk;
 }

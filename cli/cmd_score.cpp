@@ -66,13 +66,14 @@ int run_score(const ScoreArgs& a) {
     json = scoring::segment_report_json(score, det, truth.name());
   }
   if (a.json_out == "-") {
-    fmt::print("{}\n", json.dump(2));
+    // Record ids and names from the bundle may be invalid UTF-8: replaced, not a serializer error.
+    fmt::print("{}\n", json.dump(2, ' ', false, nlohmann::json::error_handler_t::replace));
     return kExitOk;
   }
   fmt::print("{}", text);
   if (!a.json_out.empty()) {
     bundle::StagedTextFile out(a.json_out);
-    out.stream() << json.dump(2) << "\n";
+    out.stream() << json.dump(2, ' ', false, nlohmann::json::error_handler_t::replace) << "\n";
     out.close();
   }
   return kExitOk;

@@ -31,13 +31,13 @@ void exercise(const std::filesystem::path& path) {
   const bundle::BundleReader reader(path);
   const bundle::DatasetSummary summary = bundle::summarize_dataset(reader);
   (void)bundle::format_summary(summary);
-  (void)bundle::summary_json(summary).dump();
+  (void)bundle::summary_json(summary).dump(2, ' ', false, nlohmann::json::error_handler_t::replace);  // as the CLI
   std::size_t n = 0;
   for (const std::string& id : reader.record_ids()) {
     if (n++ == kMaxRecordsRead) break;
     const bundle::RecordDetail detail = bundle::describe_record(reader, id);
     (void)bundle::format_record(detail);
-    (void)bundle::record_json(detail).dump();
+    (void)bundle::record_json(detail).dump(2, ' ', false, nlohmann::json::error_handler_t::replace);
     (void)reader.read_record(id);
     reader.check_record_data(id);
   }
