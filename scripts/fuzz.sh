@@ -33,7 +33,7 @@ classify() {
   fi
   local frame
   frame=$(grep -E '^ +#[0-9]+ ' <<<"$report" |
-          grep -v -E 'fuzzer::|__sanitizer|__interceptor|__asan|__lsan|__ubsan|libc\.so|libstdc\+\+\.so|in (malloc|calloc|realloc|free|operator new|operator delete)|AlarmCallback|PrintStackTrace' |
+          grep -v -E 'fuzzer::|__sanitizer|__interceptor|__asan|__lsan|__ubsan|libc\.so|libstdc\+\+\.so|nptl/|in (raise|abort|malloc|calloc|realloc|free|operator new|operator delete) |AlarmCallback|PrintStackTrace' |
           head -1 || true)
   if grep -q 'libhdf5' <<<"$frame"; then echo "external"; else echo "ours: ${frame:-no stack}"; fi
 }
