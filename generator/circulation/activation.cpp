@@ -50,11 +50,27 @@ ActivationPulse hill_pulse(double onset_s, double tau1_s, double tau2_s, double 
 }
 
 double ActivationPlan::activation(int chamber, double t_s) const {
+  std::size_t hint = 0;
+  return activation(chamber, t_s, hint);
+}
+
+double ActivationPlan::activation(int chamber, double t_s, std::size_t& hint) const {
   const auto& list = pulses[chamber];
-  auto it = std::upper_bound(list.begin(), list.end(), t_s,
-                             [](double t, const ActivationPulse& p) { return t < p.onset_s; });
-  if (it == list.begin()) return 0.0;
-  const std::size_t k = static_cast<std::size_t>(it - list.begin()) - 1;
+  const std::size_t n = list.size();
+  // k: the last pulse with onset <= t (as upper_bound - 1 would find it).
+  const auto last_started = [&](std::size_t k) { return list[k].onset_s <= t_s && (k + 1 == n || t_s < list[k + 1].onset_s); };
+  std::size_t k = hint;
+  if (!(k < n && last_started(k))) {
+    if (k + 1 < n && last_started(k + 1)) {
+      ++k;
+    } else {
+      auto it = std::upper_bound(list.begin(), list.end(), t_s,
+                                 [](double t, const ActivationPulse& p) { return t < p.onset_s; });
+      if (it == list.begin()) return 0.0;
+      k = static_cast<std::size_t>(it - list.begin()) - 1;
+    }
+  }
+  hint = k;
   double e = pulse_shape(list[k], t_s);
   if (k > 0) e = std::max(e, pulse_shape(list[k - 1], t_s));
   return e;

@@ -30,6 +30,9 @@ struct ActivationPlan {
   // Activation of one chamber at t: the larger of the latest pulse and the one before it, so a
   // pulse still relaxing when the next begins (very short RR) stays continuous.
   double activation(int chamber, double t_s) const;
+  // The same value, with the pulse index of the previous call as a starting point: the
+  // integrator asks for nearly increasing times, so the search is mostly one comparison.
+  double activation(int chamber, double t_s, std::size_t& hint) const;
 };
 
 double pulse_shape(const ActivationPulse& p, double t_s);

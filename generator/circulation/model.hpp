@@ -56,6 +56,7 @@ class CirculationModel {
   const Respiration* respiration_;
   std::array<ValveCoefficients, 4> valves_;  // mitral, aortic, tricuspid, pulmonic
   mutable std::uint64_t rhs_evaluations_ = 0;
+  mutable std::array<std::size_t, 4> pulse_hint_{};  // last pulse index per chamber (search start)
 };
 
 // Total blood volume held in the state (conserved by the equations).
