@@ -43,6 +43,13 @@ ProcessRun run_process(const std::vector<std::string>& argv);
 bool compare_with_reference(const recipe::Recipe& recipe, const std::string& source_dir, const std::string& python,
                             const std::string& scratch_dir);
 
+// synthesize_record alone on this many threads (no writing): records per wall second.
+struct SynthesisRun {
+  double records_per_s = 0;      // wall clock
+  double cpu_s_per_record = 0;   // process CPU: stays flat with more threads unless they contend
+};
+SynthesisRun synthesis_records_per_s(const recipe::Recipe& recipe, std::uint64_t records, unsigned threads);
+
 // Record 0's engine run with another step limit and tolerance against the defaults.
 void compare_engine_settings(const recipe::Recipe& recipe, double max_step_s, double tolerance);
 
