@@ -72,7 +72,7 @@ int main(int argc, char** argv) {
   app.add_option("--records", stage_records, "records for the stage timings");
   app.add_option("--thread-records", thread_records, "30 s records for the 1- and 2-thread runs");
   app.add_option("--repeats", repeats, "runs of each thread measurement; the fastest counts")->check(CLI::Range(1, 10));
-  app.add_option("--memory-counts", memory_counts, "record counts of the peak-memory runs");
+  app.add_option("--memory-counts", memory_counts, "record counts of the peak-memory runs, e.g. 100,1000")->delimiter(',');
   app.add_option("--memory-duration", memory_duration_s, "record length (s) of the peak-memory runs");
   app.add_flag("--skip-reference", skip_reference, "leave out the Python side-by-side run");
   app.add_flag("--skip-processes", skip_processes, "leave out the thread and memory runs");
