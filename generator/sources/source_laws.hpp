@@ -25,7 +25,7 @@ struct SourceLaw {
 // Valve closures: drive and gain are shared by the left and right valve of a pair, so that
 // "left louder than right" follows from the pressures, not from a per-side constant.
 //  M1/T1: drive = peak d(ventricle - atrium)/dt from closure to semilunar opening, mmHg/s
-//         (S1 amplitude tracks LV dP/dt: Sakamoto et al. 1965, Circ Res 16:45, from memory);
+//         (S1 amplitude tracks LV dP/dt: a 1965 canine study, Circ Res 16:45, from memory);
 //         load = ventricular pressure at semilunar opening (held by the closed AV leaflets).
 //  A2/P2: drive = arterial pressure at closure minus the ventricular pressure when the AV valve
 //         reopens, mmHg: the diastolic load the closed leaflets take up (Kusukawa et al. 1966,

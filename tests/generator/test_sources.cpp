@@ -41,7 +41,7 @@ TEST_CASE("AV closure loudness is proportional to the isovolumic pressure slope"
   test::SyntheticBeatShape slow, fast;
   fast.lv_rise_mmhg_s = 2 * slow.lv_rise_mmhg_s;
   fast.rv_rise_mmhg_s = 2 * slow.rv_rise_mmhg_s;
-  // S1 amplitude rises linearly with LV dP/dt (trade fact; Sakamoto et al. 1965, from memory).
+  // S1 amplitude rises linearly with LV dP/dt (trade fact; a 1965 canine study, Circ Res 16:45, from memory).
   REQUIRE(component_for(EventKind::M1, fast).amplitude / component_for(EventKind::M1, slow).amplitude ==
           Approx(2.0).epsilon(0.02));
   REQUIRE(component_for(EventKind::T1, fast).amplitude / component_for(EventKind::T1, slow).amplitude ==
