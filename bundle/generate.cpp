@@ -10,6 +10,8 @@
 #include <regex>
 #include <thread>
 
+#include <sys/resource.h>
+
 #include <fmt/format.h>
 #include <nlohmann/json.hpp>
 
@@ -26,6 +28,26 @@ namespace stethogen::bundle {
 namespace fs = std::filesystem;
 
 namespace {
+
+// libhdf5 1.10 can crash inside H5Ocopy after a failed write, so the merge must not start unless
+// the final file fits: within the file-size limit (ulimit -f) and the free space of its folder.
+// The copy moves compressed chunks as they are, so the parts' total size bounds the result.
+void check_room_for(const std::vector<fs::path>& parts, const fs::path& output) {
+  std::uintmax_t needed = 0;
+  for (const fs::path& p : parts) needed += fs::file_size(p);
+  needed += needed / 50 + (1u << 20);  // index, attributes, allocation slack
+  rlimit limit{};
+  if (::getrlimit(RLIMIT_FSIZE, &limit) == 0 && limit.rlim_cur != RLIM_INFINITY && needed > limit.rlim_cur)
+    throw RuntimeFailure(fmt::format("{}: File too large: the bundle needs about {} bytes, the file-size limit "
+                                     "(ulimit -f) is {} bytes", output.string(), needed, limit.rlim_cur));
+  const fs::path folder = output.has_parent_path() ? output.parent_path() : fs::path(".");
+  std::error_code ec;
+  const fs::space_info space = fs::space(folder, ec);
+  if (!ec && needed > space.available)
+    throw RuntimeFailure(fmt::format("{}: No space left on device: the bundle needs about {} bytes, {} has {} free",
+                                     output.string(), needed, folder.string(), space.available));
+}
+
 
 std::atomic<int> g_signal{0};
 
@@ -371,6 +393,7 @@ GenerateResult generate(const GenerateOptions& options) {
   spec.overwrite = options.force;
   spec.temp_path = workdir / "bundle.h5.partial";
   try {
+    check_room_for(parts, output);
     if (parts.empty()) {
       WriterOptions wo;
       wo.overwrite = options.force;
