@@ -55,31 +55,6 @@ std::vector<GroupCount> count_by(const std::vector<IndexRow>& index,
   return groups;
 }
 
-// The value the plan put into a subject for one drawn parameter; NaN = the state's default.
-double planned_value(const SubjectSpec& s, recipe::Param p) {
-  using recipe::Param;
-  const SubjectParams& q = s.params;
-  const double none = std::nan("");
-  switch (p) {
-    case Param::intensity: return s.exercise_intensity;
-    case Param::severity: return s.severity;
-    case Param::duration_s: return q.duration_s;
-    case Param::heart_rate_bpm: return q.heart_rate_bpm.value_or(none);
-    case Param::respiration_rate_per_min: return q.respiration_rate_per_min;
-    case Param::respiration_depth_mmhg: return q.respiration_depth_mmhg;
-    case Param::rsa_fraction: return q.rsa_fraction;
-    case Param::lf_fraction: return q.lf_fraction;
-    case Param::blood_volume_ml: return q.blood_volume_ml;
-    case Param::pr_interval_ms: return q.pr_interval_ms;
-    case Param::lv_rv_delay_ms: return q.lv_rv_delay_ms;
-    case Param::chest_wall_mm: return q.chest_wall_mm;
-    case Param::snr_db: return q.snr_db.value_or(none);
-    case Param::sensor_gain_db: return q.sensor_gain_db;
-    case Param::source_variation: return q.source_variation;
-  }
-  return none;
-}
-
 // Plans the record again from the embedded recipe (noise files relative to the bundle's folder).
 void add_planned(const BundleReader& reader, RecordDetail& d) {
   const BundleAttributes& a = reader.attributes();
@@ -93,7 +68,7 @@ void add_planned(const BundleReader& reader, RecordDetail& d) {
         recipe::parse_recipe(a.recipe_toml, (dir / (reader.path().filename().string() + "#recipe_toml")).string());
     const SubjectSpec subject = recipe::plan_record(r, d.row.record_index);
     for (const recipe::ParamInfo& p : recipe::param_table())
-      d.planned.push_back({std::string(p.key), planned_value(subject, p.param), std::string(p.unit)});
+      d.planned.push_back({std::string(p.key), recipe::planned_value(subject, p.param), std::string(p.unit)});
   } catch (const std::exception& e) {
     d.planned_note = fmt::format("not available: the embedded recipe cannot be rebuilt here ({})", e.what());
   }

@@ -39,30 +39,6 @@ struct MinMax {
   }
 };
 
-// The value the plan put into a subject for one parameter.
-double planned(const SubjectSpec& s, recipe::Param p) {
-  using recipe::Param;
-  const SubjectParams& q = s.params;
-  switch (p) {
-    case Param::intensity: return s.exercise_intensity;
-    case Param::severity: return s.severity;
-    case Param::duration_s: return q.duration_s;
-    case Param::heart_rate_bpm: return q.heart_rate_bpm.value_or(std::nan(""));
-    case Param::respiration_rate_per_min: return q.respiration_rate_per_min;
-    case Param::respiration_depth_mmhg: return q.respiration_depth_mmhg;
-    case Param::rsa_fraction: return q.rsa_fraction;
-    case Param::lf_fraction: return q.lf_fraction;
-    case Param::blood_volume_ml: return q.blood_volume_ml;
-    case Param::pr_interval_ms: return q.pr_interval_ms;
-    case Param::lv_rv_delay_ms: return q.lv_rv_delay_ms;
-    case Param::chest_wall_mm: return q.chest_wall_mm;
-    case Param::snr_db: return q.snr_db.value_or(std::nan(""));
-    case Param::sensor_gain_db: return q.sensor_gain_db;
-    case Param::source_variation: return q.source_variation;
-  }
-  return std::nan("");
-}
-
 std::string human_bytes(double bytes) {
   const char* units[] = {"B", "kB", "MB", "GB", "TB"};
   int u = 0;
@@ -101,7 +77,7 @@ int run_check(const std::string& path) {
       const SubjectSpec s = recipe::plan_record(r, index);
       for (const recipe::ParamInfo& i : recipe::param_table())
         if (pop.params[static_cast<std::size_t>(i.param)] || i.param == recipe::Param::duration_s)
-          ranges[i.param].add(planned(s, i.param));
+          ranges[i.param].add(recipe::planned_value(s, i.param));
       if (!s.noise_profile_name.empty()) ++noise_counts[s.noise_profile_name];
       total_s += s.params.duration_s;
       total_bytes += std::round(s.params.duration_s * ds.sample_rate_hz) *

@@ -1,5 +1,7 @@
 #include "recipe/parameters.hpp"
 
+#include <cmath>
+
 namespace stethogen::recipe {
 
 // Ranges: the bounds of adult physiology the circulation model is meant for, wide enough for
@@ -38,6 +40,29 @@ std::vector<std::string> param_keys() {
   std::vector<std::string> keys;
   for (const ParamInfo& i : param_table()) keys.emplace_back(i.key);
   return keys;
+}
+
+double planned_value(const SubjectSpec& s, Param p) {
+  const SubjectParams& q = s.params;
+  const double none = std::nan("");
+  switch (p) {
+    case Param::intensity: return s.exercise_intensity;
+    case Param::severity: return s.severity;
+    case Param::duration_s: return q.duration_s;
+    case Param::heart_rate_bpm: return q.heart_rate_bpm.value_or(none);
+    case Param::respiration_rate_per_min: return q.respiration_rate_per_min;
+    case Param::respiration_depth_mmhg: return q.respiration_depth_mmhg;
+    case Param::rsa_fraction: return q.rsa_fraction;
+    case Param::lf_fraction: return q.lf_fraction;
+    case Param::blood_volume_ml: return q.blood_volume_ml;
+    case Param::pr_interval_ms: return q.pr_interval_ms;
+    case Param::lv_rv_delay_ms: return q.lv_rv_delay_ms;
+    case Param::chest_wall_mm: return q.chest_wall_mm;
+    case Param::snr_db: return q.snr_db.value_or(none);
+    case Param::sensor_gain_db: return q.sensor_gain_db;
+    case Param::source_variation: return q.source_variation;
+  }
+  return none;
 }
 
 }  // namespace stethogen::recipe

@@ -9,6 +9,8 @@
 #include <string_view>
 #include <vector>
 
+#include "core/subject.hpp"
+
 namespace stethogen::recipe {
 
 enum class Param : std::uint8_t {
@@ -47,5 +49,9 @@ const ParamInfo& info(Param p);
 std::optional<Param> parse_param(std::string_view key);
 // All recipe keys of drawn parameters, for "did you mean".
 std::vector<std::string> param_keys();
+
+// The value the plan put into a subject for one drawn parameter; NaN = the state's default
+// (heart rate) or no noise (SNR).
+double planned_value(const SubjectSpec& s, Param p);
 
 }  // namespace stethogen::recipe
