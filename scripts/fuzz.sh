@@ -67,6 +67,9 @@ for t in "${targets[@]}"; do
     verdict=$(classify "$exe" "$a")
     if [ "$verdict" = external ]; then
       external=$((external + 1))
+    elif [[ "$verdict" == *"does not reproduce"* ]]; then
+      # A fork-mode child killed under load (seen: the empty input) replays clean: reported, not failed.
+      echo "fuzz: $t: unconfirmed $(basename "$a") ($verdict); replay: $exe $a"
     else
       ours=$((ours + 1))
       echo "fuzz: $t: FINDING $(basename "$a") ($verdict); reproduce: $exe $a"
