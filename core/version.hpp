@@ -3,7 +3,8 @@
 
 namespace stethogen {
 
-inline constexpr const char* kGeneratorVersion = "0.1.0";
+// From CMake's project(VERSION), so the version is stated once.
+inline constexpr const char* kGeneratorVersion = STETHOGEN_VERSION;
 
 // Bundle format (docs/bundle-format.md). Readers reject another major version.
 inline constexpr const char* kBundleFormatName = "stethogen-bundle";
