@@ -117,7 +117,7 @@ double first_deceleration(const SeriesProbe& probe, const std::vector<double>& f
 // the inflow stops. Loudness follows the peak deceleration; the sound starts as the deceleration
 // sets in, when it first reaches half its peak: the S3 follows the E-wave peak shortly (Manson,
 // Nudelman, Hagley, Hall & Kovacs 1995, Circulation 92:388) and precedes the peak deceleration
-// rate by 70 +- 16 ms (Lavine & Arends 1989, Am J Noninvasive Cardiol 3:51).
+// rate by 70 +- 16 ms (Lavine & Arends 1989, Am J Noninvasive Cardiol, pp. 51-57).
 std::optional<SoundComponent> early_filling(const BeatHemodynamics& b, const BeatHemodynamics* next,
                                             const SeriesProbe& probe, const HemodynamicSeries& s,
                                             const ComponentVariation& v) {

@@ -38,9 +38,10 @@ void apply_exercise(double x, EngineSetup& s, double hr_rest) {
 
 // A failing left ventricle leans on the atrial kick: the left atrium's booster contribution to
 // filling grows (atrial share of LV stroke volume 22 % in controls, 35 % after infarction and
-// 56 % at cardiac index <= 2 L/min/m2: Rahimtoola et al. 1975, Am J Med 59:686), so the LA
-// end-systolic elastance rises with LV-failure severity. Without it the distended atrium's
-// active and passive pressures coincide and its contraction cannot reopen the mitral valve.
+// 56 % at cardiac index <= 2 L/min/m2: Rahimtoola et al. 1975, Am J Med 59:686, authors from
+// memory), so the LA end-systolic elastance doubles at LV-failure severity 1. Without it the
+// distended atrium's active and passive pressures nearly coincide and its contraction cannot
+// reopen a mitral valve that closed in mid-diastole.
 constexpr double kAtrialBoosterGain = 1.0;
 
 // Systolic failure of one ventricle: contractility down, remodelling (ESPVR shifted right),
