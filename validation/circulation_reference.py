@@ -144,7 +144,8 @@ class Model:
         q_ven = (P["sv"] - P["tv"]) / c["r_venous"]
         q_cav = (P["tv"] - P["ra"]) / c["r_caval"]
         q_lung = (P["lu"] - P["pv"]) / c["r_pulm"]
-        q_pv = (P["pv"] - P["la"]) / c["r_pulm_venous"]
+        # The pulmonary-vein ostial sleeves narrow with the atrial contraction (Nathan & Eliakim 1966).
+        q_pv = (P["pv"] - P["la"]) / (c["r_pulm_venous"] * (1.0 + c["sleeve_gain"] * self.activation("la", t)))
         d[11], d[17] = self.valve_rates("mitral", P["la"] - P["lv"], x[11], x[17])
         d[12], d[18] = self.valve_rates("aortic", P["lv"] - P["ao"], x[12], x[18])
         d[13], d[19] = self.valve_rates("tricuspid", P["ra"] - P["rv"], x[13], x[19])

@@ -81,7 +81,8 @@ void CirculationModel::rhs(const CirculationState& x, CirculationState& d, doubl
   const double q_ven = (o.p_sv - o.p_tv) / p_.venous_resistance_mmhg_s_per_ml;
   const double q_cav = (o.p_tv - o.p_ra) / p_.caval_resistance_mmhg_s_per_ml;
   const double q_lung = (o.p_lu - o.p_pv) / p_.pulmonary_resistance_mmhg_s_per_ml;
-  const double q_pv = (o.p_pv - o.p_la) / p_.pulmonary_venous_resistance_mmhg_s_per_ml;
+  const double q_pv = (o.p_pv - o.p_la) / (p_.pulmonary_venous_resistance_mmhg_s_per_ml *
+                                           (1.0 + p_.pulmonary_venous_sleeve_gain * o.activation[kLa]));
 
   valve(valves_[0], o.p_la - o.p_lv, x[kQmi], x[kZmi], d[kQmi], d[kZmi]);
   valve(valves_[1], o.p_lv - o.p_ao, x[kQao], x[kZao], d[kQao], d[kZao]);

@@ -55,11 +55,11 @@ std::string reference_case_json(const EngineRun& run, double end_s, const std::v
   j += fmt::format(R"("pulmonary_artery":{},"lung_arteries":{},"pulmonary_veins":{},)", compliance(p.pulmonary_artery),
                    compliance(p.lung_arteries), compliance(p.pulmonary_veins));
   j += fmt::format(
-      R"("r_aortic":{:.17g},"l_aortic":{:.17g},"r_systemic":{:.17g},"r_venous":{:.17g},"r_caval":{:.17g},"r_pulm_char":{:.17g},"l_pulm":{:.17g},"r_pulm":{:.17g},"r_pulm_venous":{:.17g},)",
+      R"("r_aortic":{:.17g},"l_aortic":{:.17g},"r_systemic":{:.17g},"r_venous":{:.17g},"r_caval":{:.17g},"r_pulm_char":{:.17g},"l_pulm":{:.17g},"r_pulm":{:.17g},"r_pulm_venous":{:.17g},"sleeve_gain":{:.17g},)",
       p.aortic_resistance_mmhg_s_per_ml, p.aortic_inertance_mmhg_s2_per_ml, p.systemic_resistance_mmhg_s_per_ml,
       p.venous_resistance_mmhg_s_per_ml, p.caval_resistance_mmhg_s_per_ml, p.pulmonary_char_resistance_mmhg_s_per_ml,
       p.pulmonary_inertance_mmhg_s2_per_ml, p.pulmonary_resistance_mmhg_s_per_ml,
-      p.pulmonary_venous_resistance_mmhg_s_per_ml);
+      p.pulmonary_venous_resistance_mmhg_s_per_ml, p.pulmonary_venous_sleeve_gain);
   j += fmt::format(R"("density":{:.17g},"abdominal":{:.17g},"lung_gain":{:.17g},)", p.blood_density_g_per_cm3,
                    p.abdominal_pressure_per_pleural, p.lung_capacitance_per_mmhg);
   j += fmt::format(

@@ -28,6 +28,7 @@ constexpr double kRelaxationSearchS = 0.20;     // AV reopening after a semiluna
 constexpr double kAvGuardS = 0.010;          // look this far before the AV closure for the steepest rise
 constexpr double kEarlyFillingSearchS = 0.20;  // E-wave peak within this of the AV opening
 constexpr double kDecelerationSearchS = 0.25;  // the E-wave's deceleration ends within this of its peak
+constexpr double kDecelerationOnsetFraction = 0.5;  // S3/S4 start where the deceleration reaches this share of its peak
 // P-wave onset to the atrial contraction: before it, a rising LV pressure is still passive filling.
 constexpr double kAtrialContractionDelayS = 0.06;
 // The A-wave may run past the Q wave (the ventricle contracts after its electromechanical delay).
@@ -102,8 +103,21 @@ double first_non_positive(const SeriesProbe& probe, const std::vector<double>& t
   return limit_s;
 }
 
+// Where a filling wave's deceleration sets in: the first instant after its peak at which the
+// deceleration reaches kDecelerationOnsetFraction of its largest value (the sound of the
+// cardiohemic system is forced by the deceleration and starts as it builds up).
+double first_deceleration(const SeriesProbe& probe, const std::vector<double>& flow, double peak_s,
+                          const SeriesProbe::Extremum& steepest) {
+  if (!(steepest.value < 0)) return steepest.time_s;
+  double t = probe.first_rate_at_most(flow, peak_s, steepest.time_s, kDecelerationOnsetFraction * steepest.value);
+  return finite(t) ? t : steepest.time_s;
+}
+
 // S3: the early (rapid) filling wave decelerated by the ventricle, from the E-wave's peak until
-// the inflow stops.
+// the inflow stops. Loudness follows the peak deceleration; the sound starts as the deceleration
+// sets in, when it first reaches half its peak: the S3 follows the E-wave peak shortly (Manson,
+// Nudelman, Hagley, Hall & Kovacs 1995, Circulation 92:388) and precedes the peak deceleration
+// rate by 70 +- 16 ms (Lavine & Arends 1989, Am J Noninvasive Cardiol, pp. 51-57).
 std::optional<SoundComponent> early_filling(const BeatHemodynamics& b, const BeatHemodynamics* next,
                                             const SeriesProbe& probe, const HemodynamicSeries& s,
                                             const ComponentVariation& v) {
@@ -117,12 +131,14 @@ std::optional<SoundComponent> early_filling(const BeatHemodynamics& b, const Bea
                                         std::min(e_peak.time_s + kDecelerationSearchS, limit), 1.0 / s.rate_hz);
   if (decel_end <= e_peak.time_s) return std::nullopt;
   auto decel = probe.min_rate(s.q_mitral, e_peak.time_s, decel_end);
-  return make_component(EventKind::S3, b.beat, decel.time_s, std::max(-decel.value, 0.0),
-                        probe.value(s.p_lv, decel.time_s), v);
+  double onset = first_deceleration(probe, s.q_mitral, e_peak.time_s, decel);
+  return make_component(EventKind::S3, b.beat, onset, std::max(-decel.value, 0.0), probe.value(s.p_lv, decel.time_s),
+                        v);
 }
 
 // S4: the atrial filling wave decelerated by the ventricle before it contracts, from the
-// A-wave's peak until the inflow stops or the valve closes.
+// A-wave's peak until the inflow stops or the valve closes; timed and driven as the S3 (the
+// same cardiohemic vibration, forced by the late-diastolic inflow).
 std::optional<SoundComponent> atrial_filling(const BeatHemodynamics& b, const SeriesProbe& probe,
                                              const HemodynamicSeries& s, const ComponentVariation& v) {
   double start = b.atrial_activation_s + kAtrialContractionDelayS;
@@ -133,8 +149,9 @@ std::optional<SoundComponent> atrial_filling(const BeatHemodynamics& b, const Se
   double decel_end = first_non_positive(probe, s.q_mitral, a_peak.time_s, end, 1.0 / s.rate_hz);
   if (decel_end <= a_peak.time_s) decel_end = end;
   auto decel = probe.min_rate(s.q_mitral, a_peak.time_s, decel_end);
-  return make_component(EventKind::S4, b.beat, decel.time_s, std::max(-decel.value, 0.0),
-                        probe.value(s.p_lv, decel.time_s), v);
+  double onset = first_deceleration(probe, s.q_mitral, a_peak.time_s, decel);
+  return make_component(EventKind::S4, b.beat, onset, std::max(-decel.value, 0.0), probe.value(s.p_lv, decel.time_s),
+                        v);
 }
 
 double log_normal(RandomStream& rng, double sd) { return std::exp(sd * rng.normal()); }

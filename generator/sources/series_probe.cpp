@@ -74,6 +74,15 @@ double SeriesProbe::first_rate_at_least(const std::vector<double>& a, const std:
   return NAN;
 }
 
+double SeriesProbe::first_rate_at_most(const std::vector<double>& a, double t0_s, double t1_s,
+                                       double threshold) const {
+  std::size_t first = 0, last = 0;
+  if (!window(t0_s, t1_s, first, last)) return NAN;
+  for (std::size_t k = first; k <= last; ++k)
+    if (rate_at(a, nullptr, k) <= threshold) return s_.time_at(k);
+  return NAN;
+}
+
 SeriesProbe::Extremum SeriesProbe::max_value(const std::vector<double>& a, double t0_s, double t1_s) const {
   Extremum best{-std::numeric_limits<double>::infinity(), t0_s};
   std::size_t first = 0, last = 0;

@@ -31,6 +31,8 @@ class SeriesProbe {
   // First sample time in [t0, t1] where the rate of change of (a - b) reaches threshold; NaN if none.
   double first_rate_at_least(const std::vector<double>& a, const std::vector<double>& b, double t0_s, double t1_s,
                              double threshold) const;
+  // First sample time in [t0, t1] where the rate of change of a falls to threshold or below; NaN if none.
+  double first_rate_at_most(const std::vector<double>& a, double t0_s, double t1_s, double threshold) const;
 
   bool covers(double time_s) const;
   double start_s() const { return s_.t0_s; }
