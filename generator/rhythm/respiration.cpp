@@ -43,8 +43,9 @@ double Respiration::phase(double t_s, std::size_t& hint) const {
       }
     }
     hint = k;
-    period = starts_[k + 1] - starts_[k];
-    phase_time = t_s - starts_[k];
+    // Inside the breath the quotient is in [0, 1] already (floor would return 0 unless it is 1).
+    const double ph = (t_s - starts_[k]) / (starts_[k + 1] - starts_[k]);
+    return ph < 1.0 ? ph : 0.0;
   }
   double ph = phase_time / period;
   ph -= std::floor(ph);
