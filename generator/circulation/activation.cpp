@@ -17,7 +17,7 @@ inline double whole_power(double x, int n) {
 
 // The double-Hill shape at s = u / tau2 before normalisation. Both powers come from one
 // logarithm, (u/tau1)^m1 = exp(m1 ln s + m1 ln(tau2/tau1)) and (u/tau2)^m2 = exp(m2 ln s), or
-// s^m2 by squaring for a whole m2: about a third of the cost of two pow.
+// s^m2 by squaring for a whole m2: about half the cost of two pow.
 inline double hill_unit(double s, double log_ratio_term, double m1, double m2, int m2_whole) {
   const double l = std::log(s);
   const double g1 = std::exp(m1 * l + log_ratio_term);

