@@ -7,79 +7,116 @@ namespace stethogen::gen {
 
 namespace {
 
-inline double hill_raw(double u, double tau1, double tau2, double m1, double m2) {
-  const double g1 = std::pow(u / tau1, m1);
-  const double g2 = std::pow(u / tau2, m2);
-  return g1 / (1.0 + g1) / (1.0 + g2);
+// x^n for n >= 1 by repeated squaring.
+inline double whole_power(double x, int n) {
+  double result = 1.0;
+  for (; n > 0; n >>= 1, x *= x)
+    if (n & 1) result *= x;
+  return result;
 }
 
-}  // namespace
+// The double-Hill shape at s = u / tau2 before normalisation. Both powers come from one
+// logarithm, (u/tau1)^m1 = exp(m1 ln s + m1 ln(tau2/tau1)) and (u/tau2)^m2 = exp(m2 ln s), or
+// s^m2 by squaring for a whole m2: about half the cost of two pow.
+inline double hill_unit(double s, double log_ratio_term, double m1, double m2, int m2_whole) {
+  const double l = std::log(s);
+  const double g1 = std::exp(m1 * l + log_ratio_term);
+  const double g2 = m2_whole > 0 ? whole_power(s, m2_whole) : std::exp(m2 * l);
+  return g1 / ((1.0 + g1) * (1.0 + g2));
+}
 
-double pulse_shape(const ActivationPulse& p, double t_s) {
+inline int whole_exponent(double m) { return m == std::round(m) && m >= 1.0 && m <= 64.0 ? static_cast<int>(m) : 0; }
+
+inline double shape(const ActivationPulse& p, double t_s) {
   const double u = t_s - p.onset_s;
   if (u <= 0.0) return 0.0;
   if (p.m1 > 0.0) {
     if (u >= kHillCutoff * p.b_s) return 0.0;
-    return p.norm * hill_raw(u, p.a_s, p.b_s, p.m1, p.m2);
+    return p.norm * hill_unit(u * p.rate_b, p.hill_log_ratio_term, p.m1, p.m2, p.hill_m2_whole);
   }
-  if (u < p.a_s) return 0.5 * (1.0 - std::cos(M_PI * u / p.a_s));
+  if (u < p.a_s) return 0.5 * (1.0 - std::cos(u * p.rate_a));
   const double w = u - p.a_s;
-  if (w < p.b_s) return 0.5 * (1.0 + std::cos(M_PI * w / p.b_s));
+  if (w < p.b_s) return 0.5 * (1.0 + std::cos(w * p.rate_b));
   return 0.0;
 }
 
-ActivationPulse hill_pulse(double onset_s, double tau1_s, double tau2_s, double m1, double m2) {
-  // The peak depends only on tau1/tau2 and the exponents (time scales out), so it is found once
-  // on the unit time scale tau2 = 1 and reused while those stay the same.
-  thread_local double cached_ratio = -1, cached_m1 = -1, cached_m2 = -1, cached_peak = 1;
-  const double ratio = tau1_s / tau2_s;
-  if (ratio != cached_ratio || m1 != cached_m1 || m2 != cached_m2) {
-    // The peak lies between tau1 and tau2 for the exponents in use; golden-section search.
-    double a = 0.2 * ratio, b = 1.2;
-    const double g = 0.5 * (std::sqrt(5.0) - 1.0);
-    for (int i = 0; i < 80; ++i) {
-      const double c = b - g * (b - a), d = a + g * (b - a);
-      if (hill_raw(c, ratio, 1.0, m1, m2) > hill_raw(d, ratio, 1.0, m1, m2)) b = d; else a = c;
-    }
-    cached_ratio = ratio;
-    cached_m1 = m1;
-    cached_m2 = m2;
-    cached_peak = hill_raw(0.5 * (a + b), ratio, 1.0, m1, m2);
+// Index of the last pulse with onset <= t (as upper_bound - 1 would find it), starting from hint;
+// false before the first onset.
+inline bool last_started(const std::vector<ActivationPulse>& list, double t_s, std::size_t& hint) {
+  const std::size_t n = list.size();
+  const auto is_last = [&](std::size_t k) { return list[k].onset_s <= t_s && (k + 1 == n || t_s < list[k + 1].onset_s); };
+  if (hint < n && is_last(hint)) return true;
+  if (hint + 1 < n && is_last(hint + 1)) {
+    ++hint;
+    return true;
   }
-  return {onset_s, tau1_s, tau2_s, 1.0 / cached_peak, m1, m2};
+  auto it = std::upper_bound(list.begin(), list.end(), t_s, [](double t, const ActivationPulse& p) { return t < p.onset_s; });
+  if (it == list.begin()) return false;
+  hint = static_cast<std::size_t>(it - list.begin()) - 1;
+  return true;
+}
+
+inline double chamber_activation(const std::vector<ActivationPulse>& list, double t_s, std::size_t& hint) {
+  if (!last_started(list, t_s, hint)) return 0.0;
+  double e = shape(list[hint], t_s);
+  if (hint > 0) e = std::max(e, shape(list[hint - 1], t_s));
+  return e;
+}
+
+}  // namespace
+
+double pulse_shape(const ActivationPulse& p, double t_s) { return shape(p, t_s); }
+
+double hill_peak(double ratio, double m1, double m2) {
+  // The peak lies between tau1 and tau2 for the exponents in use; golden-section search.
+  const double log_ratio_term = -m1 * std::log(ratio);
+  const int m2_whole = whole_exponent(m2);
+  double a = 0.2 * ratio, b = 1.2;
+  const double g = 0.5 * (std::sqrt(5.0) - 1.0);
+  for (int i = 0; i < 80; ++i) {
+    const double c = b - g * (b - a), d = a + g * (b - a);
+    if (hill_unit(c, log_ratio_term, m1, m2, m2_whole) > hill_unit(d, log_ratio_term, m1, m2, m2_whole)) b = d; else a = c;
+  }
+  return hill_unit(0.5 * (a + b), log_ratio_term, m1, m2, m2_whole);
+}
+
+ActivationPulse hill_pulse(double onset_s, double tau1_s, double tau2_s, double m1, double m2, double norm) {
+  ActivationPulse p{onset_s, tau1_s, tau2_s, norm, m1, m2};
+  p.rate_b = 1.0 / tau2_s;
+  p.hill_log_ratio_term = m1 * std::log(tau2_s / tau1_s);
+  p.hill_m2_whole = whole_exponent(m2);
+  return p;
+}
+
+ActivationPulse cosine_pulse(double onset_s, double rise_s, double fall_s) {
+  ActivationPulse p{onset_s, rise_s, fall_s, 1.0, 0.0, 0.0};
+  p.rate_a = M_PI / rise_s;
+  p.rate_b = M_PI / fall_s;
+  return p;
 }
 
 double ActivationPlan::activation(int chamber, double t_s) const {
   std::size_t hint = 0;
-  return activation(chamber, t_s, hint);
+  return chamber_activation(pulses[chamber], t_s, hint);
 }
 
-double ActivationPlan::activation(int chamber, double t_s, std::size_t& hint) const {
-  const auto& list = pulses[chamber];
-  const std::size_t n = list.size();
-  // k: the last pulse with onset <= t (as upper_bound - 1 would find it).
-  const auto last_started = [&](std::size_t k) { return list[k].onset_s <= t_s && (k + 1 == n || t_s < list[k + 1].onset_s); };
-  std::size_t k = hint;
-  if (!(k < n && last_started(k))) {
-    if (k + 1 < n && last_started(k + 1)) {
-      ++k;
-    } else {
-      auto it = std::upper_bound(list.begin(), list.end(), t_s,
-                                 [](double t, const ActivationPulse& p) { return t < p.onset_s; });
-      if (it == list.begin()) return 0.0;
-      k = static_cast<std::size_t>(it - list.begin()) - 1;
-    }
+void ActivationPlan::activations(double t_s, ActivationCursor& c, std::array<double, 4>& e) const {
+  if (t_s != c.t_s) {
+    c.value[kLv] = chamber_activation(pulses[kLv], t_s, c.pulse[kLv]);
+    c.value[kRv] = chamber_activation(pulses[kRv], t_s, c.pulse[kRv]);
+    c.value[kLa] = chamber_activation(pulses[kLa], t_s, c.pulse[kLa]);
+    c.value[kRa] = atria_identical ? c.value[kLa] : chamber_activation(pulses[kRa], t_s, c.pulse[kRa]);
+    c.t_s = t_s;
   }
-  hint = k;
-  double e = pulse_shape(list[k], t_s);
-  if (k > 0) e = std::max(e, pulse_shape(list[k - 1], t_s));
-  return e;
+  e = c.value;
 }
 
 ActivationPlan make_activation_plan(const std::vector<double>& q_s, const ActivationTiming& tm,
                                     double pr_interval_s, double lv_rv_delay_s) {
   ActivationPlan plan;
   for (auto& v : plan.pulses) v.reserve(q_s.size());
+  // The tau ratio and exponents are the same for every ventricular pulse, so is the peak.
+  const double norm = 1.0 / hill_peak(tm.hill_tau1_fraction / tm.hill_tau2_fraction, tm.hill_m1, tm.hill_m2);
   for (std::size_t n = 0; n < q_s.size(); ++n) {
     // Durations follow the preceding RR (the first beat borrows the following one).
     double rr = 1.0;
@@ -90,13 +127,14 @@ ActivationPlan make_activation_plan(const std::vector<double>& q_s, const Activa
     const double rv_onset = lv_onset + tm.rv_extra_delay_s + lv_rv_delay_s;
     const double atrial_onset = q_s[n] - pr_interval_s + tm.atrial_electromechanical_delay_s;
     const double lv_t = period * tm.lv_duration_scale, rv_t = period * tm.rv_duration_scale;
-    plan.pulses[kLv].push_back(
-        hill_pulse(lv_onset, tm.hill_tau1_fraction * lv_t, tm.hill_tau2_fraction * lv_t, tm.hill_m1, tm.hill_m2));
-    plan.pulses[kRv].push_back(
-        hill_pulse(rv_onset, tm.hill_tau1_fraction * rv_t, tm.hill_tau2_fraction * rv_t, tm.hill_m1, tm.hill_m2));
-    plan.pulses[kLa].push_back({atrial_onset, tm.atrial_rise_s, tm.atrial_fall_s, 1.0, 0.0, 0.0});
-    plan.pulses[kRa].push_back({atrial_onset, tm.atrial_rise_s, tm.atrial_fall_s, 1.0, 0.0, 0.0});
+    plan.pulses[kLv].push_back(hill_pulse(lv_onset, tm.hill_tau1_fraction * lv_t, tm.hill_tau2_fraction * lv_t,
+                                          tm.hill_m1, tm.hill_m2, norm));
+    plan.pulses[kRv].push_back(hill_pulse(rv_onset, tm.hill_tau1_fraction * rv_t, tm.hill_tau2_fraction * rv_t,
+                                          tm.hill_m1, tm.hill_m2, norm));
+    plan.pulses[kLa].push_back(cosine_pulse(atrial_onset, tm.atrial_rise_s, tm.atrial_fall_s));
   }
+  plan.pulses[kRa] = plan.pulses[kLa];
+  plan.atria_identical = true;
   return plan;
 }
 

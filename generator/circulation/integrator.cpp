@@ -1,5 +1,6 @@
 #include "generator/circulation/integrator.hpp"
 
+#include <algorithm>
 #include <cmath>
 #include <exception>
 
@@ -17,9 +18,32 @@ Integrator::Integrator(const CirculationModel& model, const CirculationState& x0
       settings_(settings),
       record_id_(std::move(record_id)),
       context_(std::move(context)),
-      stepper_(odeint::make_dense_output(settings.abs_tolerance, settings.rel_tolerance, settings.max_step_s,
-                                         odeint::runge_kutta_dopri5<CirculationState>())) {
+      stepper_(Stepper::controlled_stepper_type(
+          Stepper::controlled_stepper_type::error_checker_type(settings.abs_tolerance, settings.rel_tolerance),
+          PiStepAdjuster(settings.max_step_s))) {
   stepper_.initialize(x0, t0_s, 1e-4);
+}
+
+namespace {
+// Hairer's DOPRI5 defaults: safety factor, growth and shrink limits, and the exponents of the
+// current and the previous error (beta = 0.04, alpha = 1/5 - 0.75 beta).
+constexpr double kSafety = 0.9, kMaxGrowth = 10.0, kMaxShrink = 0.2, kBeta = 0.04, kAlpha = 0.2 - 0.75 * kBeta;
+}  // namespace
+
+double PiStepAdjuster::decrease_step(double dt, double error, int) {
+  rejected_ = true;
+  dt *= std::max(kSafety / std::pow(error, kAlpha), kMaxShrink);
+  return max_dt_s_ > 0 ? std::min(dt, max_dt_s_) : dt;
+}
+
+double PiStepAdjuster::increase_step(double dt, double error, int) {
+  double factor = kSafety * std::pow(previous_error_, kBeta) / std::pow(error, kAlpha);
+  factor = std::clamp(factor, kMaxShrink, kMaxGrowth);
+  if (rejected_) factor = std::min(factor, 1.0);
+  rejected_ = false;
+  previous_error_ = std::max(error, 1e-4);
+  dt *= factor;
+  return max_dt_s_ > 0 ? std::min(dt, max_dt_s_) : dt;
 }
 
 void Integrator::fail(const std::string& reason) const {

@@ -51,11 +51,10 @@ void CirculationModel::valve(const ValveCoefficients& c, double dp, double q, do
 }
 
 void CirculationModel::outputs(const CirculationState& x, double t, ModelOutputs& o) const {
-  const double swing = respiration_->swing(respiration_->phase(t));
-  const double fall = respiration_->depth_mmhg() * swing;  // pleural fall below end-expiration
+  const double fall = respiration_->pleural_fall_mmhg(t, breath_hint_);  // below end-expiration
   const double pt = respiration_->end_expiratory_mmhg() - fall;
   const double lung_factor = 1.0 / (1.0 + p_.lung_capacitance_per_mmhg * fall);
-  for (int c = 0; c < 4; ++c) o.activation[c] = activation_->activation(c, t, pulse_hint_[c]);
+  activation_->activations(t, activation_cursor_, o.activation);
   const double vpcd = x[kVlv] + x[kVrv] - p_.pericardium_v0_ml;
   o.p_pericardium = p_.pericardium_p0_mmhg * (std::exp(p_.pericardium_lambda_per_ml * vpcd) - 1.0);
   o.p_thorax = pt;

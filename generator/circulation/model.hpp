@@ -56,7 +56,8 @@ class CirculationModel {
   const Respiration* respiration_;
   std::array<ValveCoefficients, 4> valves_;  // mitral, aortic, tricuspid, pulmonic
   mutable std::uint64_t rhs_evaluations_ = 0;
-  mutable std::array<std::size_t, 4> pulse_hint_{};  // last pulse index per chamber (search start)
+  mutable ActivationCursor activation_cursor_;  // search start and last values
+  mutable std::size_t breath_hint_ = 0;         // search start of the breath lookup
 };
 
 // Total blood volume held in the state (conserved by the equations).

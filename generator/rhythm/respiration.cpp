@@ -17,6 +17,11 @@ Respiration::Respiration(std::vector<double> breath_starts_s, double nominal_per
 Respiration Respiration::apnoea(double pleural_mmhg) { return Respiration({0.0}, 4.0, 0.4, pleural_mmhg, 0.0); }
 
 double Respiration::phase(double t_s) const {
+  std::size_t hint = 0;
+  return phase(t_s, hint);
+}
+
+double Respiration::phase(double t_s, std::size_t& hint) const {
   double phase_time;
   double period;
   if (starts_.size() < 2 || t_s < starts_.front()) {
@@ -27,9 +32,20 @@ double Respiration::phase(double t_s) const {
     period = period_s_;
     phase_time = t_s - starts_.back();
   } else {
-    auto it = std::upper_bound(starts_.begin(), starts_.end(), t_s);
-    period = *it - *(it - 1);
-    phase_time = t_s - *(it - 1);
+    // k: the breath holding t, starts_[k] <= t < starts_[k + 1].
+    std::size_t k = hint;
+    const auto holds = [&](std::size_t i) { return i + 1 < starts_.size() && starts_[i] <= t_s && t_s < starts_[i + 1]; };
+    if (!holds(k)) {
+      if (holds(k + 1)) {
+        ++k;
+      } else {
+        k = static_cast<std::size_t>(std::upper_bound(starts_.begin(), starts_.end(), t_s) - starts_.begin()) - 1;
+      }
+    }
+    hint = k;
+    // Inside the breath the quotient is in [0, 1] already (floor would return 0 unless it is 1).
+    const double ph = (t_s - starts_[k]) / (starts_[k + 1] - starts_[k]);
+    return ph < 1.0 ? ph : 0.0;
   }
   double ph = phase_time / period;
   ph -= std::floor(ph);

@@ -3,6 +3,7 @@
 // (intrathoracic) pressure falls smoothly through inspiration and recovers in expiration.
 #pragma once
 
+#include <cstddef>
 #include <vector>
 
 namespace stethogen::gen {
@@ -19,9 +20,16 @@ class Respiration {
 
   // Phase in [0, 1), 0 = start of inspiration.
   double phase(double t_s) const;
+  // The same, with the breath index of the previous call as the search start (for callers that
+  // ask for nearly increasing times).
+  double phase(double t_s, std::size_t& breath_hint) const;
   bool inspiration(double t_s) const { return phase(t_s) < inspiration_fraction_; }
   // Depth shape in [0, 1]: 0 at end-expiration, 1 at end-inspiration; C1-continuous raised cosines.
   double swing(double phase) const;
+  // Fall of the pleural pressure below end-expiration at t (mmHg): depth x swing.
+  double pleural_fall_mmhg(double t_s, std::size_t& breath_hint) const {
+    return depth_mmhg_ == 0.0 ? 0.0 : depth_mmhg_ * swing(phase(t_s, breath_hint));
+  }
 
   const std::vector<double>& breath_starts_s() const { return starts_; }
   double nominal_period_s() const { return period_s_; }
