@@ -33,20 +33,40 @@ TEST_CASE("sampled envelope timing agrees with the closed form", "[truth]") {
 TEST_CASE("four-state labels follow S1 and S2 intervals", "[truth]") {
   std::vector<std::uint8_t> labels(20);
   // At 10 Hz: S2 [-0.5,-0.3), S1 [0.2, 0.4), S2 [0.9, 1.1), S1 [1.5, 1.7).
-  label_states({{true, 0.2, 0.4}, {false, -0.5, -0.3}, {false, 0.9, 1.1}, {true, 1.5, 1.7}}, 10.0, labels.data(),
+  label_states({{true, 0.2, 0.4}, {false, -0.5, -0.3}, {false, 0.9, 1.1}, {true, 1.5, 1.7}}, {}, 10.0, labels.data(),
                labels.size());
   const std::uint8_t expected[20] = {4, 4, 1, 1, 2, 2, 2, 2, 2, 3, 3, 4, 4, 4, 4, 1, 1, 0, 0, 0};
   for (int i = 0; i < 20; ++i) {
     INFO("sample " << i);
     REQUIRE(labels[i] == expected[i]);
   }
-  // Two S1 in a row: the gap between them is undefined.
-  label_states({{true, 0.0, 0.2}, {true, 0.5, 0.7}}, 10.0, labels.data(), 10);
-  REQUIRE(labels[3] == 0);
   // Overlap: the later sound takes over at its onset.
-  label_states({{true, 0.0, 0.5}, {false, 0.3, 0.6}}, 10.0, labels.data(), 10);
+  label_states({{true, 0.0, 0.5}, {false, 0.3, 0.6}}, {}, 10.0, labels.data(), 10);
   REQUIRE(labels[2] == 1);
   REQUIRE(labels[3] == 3);
+  REQUIRE(labels[6] == 0);
+}
+
+TEST_CASE("four-state labels take the phase from the valve closures between sounds of one kind", "[truth]") {
+  std::vector<std::uint8_t> labels(20);
+  // At 10 Hz: S1 [0.0, 0.2) then, with its S2 missing, S1 [0.8, 1.0): systole up to the aortic
+  // closure at 0.45, diastole after it. Then S2 [1.1, 1.3) and S2 [1.6, 1.8) with the S1 between
+  // them lost (overlapped): diastole up to the AV closure at 1.45, systole after it.
+  label_states({{true, 0.0, 0.2}, {true, 0.8, 1.0}, {false, 1.1, 1.3}, {false, 1.6, 1.8}},
+               {{-0.1, 1.45}, {0.45, 1.55}}, 10.0, labels.data(), labels.size());
+  const std::uint8_t expected[20] = {1, 1, 2, 2, 2, 4, 4, 4, 1, 1, 2, 3, 3, 4, 4, 2, 3, 3, 0, 0};
+  for (int i = 0; i < 20; ++i) {
+    INFO("sample " << i);
+    REQUIRE(labels[i] == expected[i]);
+  }
+  // Closures inside a sound do not count (the AV closure at 0.15 lies in the first S2); without
+  // one in the gap [0.2, 0.6) the phase changes halfway, at 0.4.
+  label_states({{false, 0.0, 0.2}, {false, 0.6, 0.8}}, {{0.15}, {}}, 10.0, labels.data(), 10);
+  const std::uint8_t halfway[10] = {3, 3, 4, 4, 2, 2, 3, 3, 0, 0};
+  for (int i = 0; i < 10; ++i) {
+    INFO("sample " << i);
+    REQUIRE(labels[i] == halfway[i]);
+  }
 }
 
 TEST_CASE("only events and beats inside the record window are kept; labels cover it", "[truth]") {
