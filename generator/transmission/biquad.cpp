@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <cstring>
 #include <numbers>
 
 namespace stethogen::gen {
@@ -85,21 +86,14 @@ void FilterCascade::append(const FilterCascade& other) {
   gain *= other.gain;
 }
 
+namespace {
+
+// Section by section over the whole buffer, for cascades too long for the fused loop below.
 template <typename T>
-void filter_in_place(const FilterCascade& cascade, T* data, std::size_t n) {
-  // Section by section over the whole buffer; first-order sections (b2 = a2 = 0, the Butterworth
-  // first-order designs) skip the second state, whose value would be exactly zero.
-  for (const Biquad& s : cascade.sections) {
-    T z1{}, z2{};
-    if (s.b2 == 0.0 && s.a2 == 0.0) {
-      for (std::size_t i = 0; i < n; ++i) {
-        T x = data[i];
-        T y = s.b0 * x + z1;
-        z1 = s.b1 * x - s.a1 * y;
-        data[i] = y;
-      }
-      continue;
-    }
+void by_section(const FilterCascade& cascade, T* data, std::size_t n, T* state) {
+  for (std::size_t k = 0; k < cascade.sections.size(); ++k) {
+    const Biquad s = cascade.sections[k];
+    T z1 = state[2 * k], z2 = state[2 * k + 1];
     for (std::size_t i = 0; i < n; ++i) {
       T x = data[i];
       T y = s.b0 * x + z1;
@@ -107,12 +101,88 @@ void filter_in_place(const FilterCascade& cascade, T* data, std::size_t n) {
       z2 = s.b2 * x - s.a2 * y;
       data[i] = y;
     }
+    state[2 * k] = z1;
+    state[2 * k + 1] = z2;
   }
   if (cascade.gain != 1.0)
     for (std::size_t i = 0; i < n; ++i) data[i] = data[i] * cascade.gain;
 }
 
+// A complex sample as a pair of doubles (re, im) in one vector register (GCC vector extension:
+// packed SSE2 on x86-64); real coefficients act on both lanes alike.
+using Pair = double __attribute__((vector_size(16)));
+template <typename T> struct Lanes { using type = T; };
+template <> struct Lanes<std::complex<double>> { using type = Pair; };
+
+// All N sections per sample, coefficients and states in registers: the sections' recurrences
+// overlap instead of running one after the other, and the buffer is read and written once.
+// First-order sections (b2 = a2 = 0, the Butterworth first-order designs) skip the second
+// state, whose value would be exactly zero. Per sample and section the arithmetic is that of
+// by_section, in the same order, so both give the same values.
+template <typename T, std::size_t N>
+void fused(const FilterCascade& cascade, T* data, std::size_t n, T* state) {
+  using V = typename Lanes<T>::type;
+  static_assert(sizeof(V) == sizeof(T));
+  double b0[N], b1[N], b2[N], a1[N], a2[N];
+  bool first_order[N];
+  V z1[N], z2[N];
+  for (std::size_t k = 0; k < N; ++k) {
+    const Biquad& s = cascade.sections[k];
+    b0[k] = s.b0, b1[k] = s.b1, b2[k] = s.b2, a1[k] = s.a1, a2[k] = s.a2;
+    first_order[k] = s.b2 == 0.0 && s.a2 == 0.0;
+    std::memcpy(&z1[k], &state[2 * k], sizeof(V));
+    std::memcpy(&z2[k], &state[2 * k + 1], sizeof(V));
+  }
+  const double gain = cascade.gain;
+  const bool scaled = gain != 1.0;
+  for (std::size_t i = 0; i < n; ++i) {
+    V x;
+    std::memcpy(&x, &data[i], sizeof(V));
+#pragma GCC unroll 8
+    for (std::size_t k = 0; k < N; ++k) {
+      V y = b0[k] * x + z1[k];
+      if (first_order[k]) {
+        z1[k] = b1[k] * x - a1[k] * y;
+      } else {
+        z1[k] = b1[k] * x - a1[k] * y + z2[k];
+        z2[k] = b2[k] * x - a2[k] * y;
+      }
+      x = y;
+    }
+    if (scaled) x = x * gain;
+    std::memcpy(static_cast<void*>(&data[i]), &x, sizeof(V));
+  }
+  for (std::size_t k = 0; k < N; ++k) {
+    std::memcpy(static_cast<void*>(&state[2 * k]), &z1[k], sizeof(V));
+    std::memcpy(static_cast<void*>(&state[2 * k + 1]), &z2[k], sizeof(V));
+  }
+}
+
+}  // namespace
+
+template <typename T>
+void filter_continue(const FilterCascade& cascade, T* data, std::size_t n, T* state) {
+  switch (cascade.sections.size()) {
+    case 0: if (cascade.gain != 1.0) for (std::size_t i = 0; i < n; ++i) data[i] = data[i] * cascade.gain; return;
+    case 1: return fused<T, 1>(cascade, data, n, state);
+    case 2: return fused<T, 2>(cascade, data, n, state);
+    case 3: return fused<T, 3>(cascade, data, n, state);
+    case 4: return fused<T, 4>(cascade, data, n, state);
+    case 5: return fused<T, 5>(cascade, data, n, state);
+    case 6: return fused<T, 6>(cascade, data, n, state);
+    default: return by_section(cascade, data, n, state);
+  }
+}
+
+template <typename T>
+void filter_in_place(const FilterCascade& cascade, T* data, std::size_t n) {
+  std::vector<T> rest(2 * cascade.sections.size(), T{});
+  filter_continue(cascade, data, n, rest.data());
+}
+
 template void filter_in_place<double>(const FilterCascade&, double*, std::size_t);
 template void filter_in_place<std::complex<double>>(const FilterCascade&, std::complex<double>*, std::size_t);
+template void filter_continue<std::complex<double>>(const FilterCascade&, std::complex<double>*, std::size_t,
+                                                     std::complex<double>*);
 
 }  // namespace stethogen::gen

@@ -42,5 +42,10 @@ double max_corner_hz(double fs_hz);
 // std::complex<double> (real coefficients act on real and imaginary parts alike).
 template <typename T>
 void filter_in_place(const FilterCascade& cascade, T* data, std::size_t n);
+// The same from a given state, 2 values per section (all zero = at rest), left in state after the
+// last sample so that a later call continues the signal. The state is before the cascade's gain.
+// The filter is linear: the state of a sum of signals is the sum of their states.
+template <typename T>
+void filter_continue(const FilterCascade& cascade, T* data, std::size_t n, T* state);
 
 }  // namespace stethogen::gen

@@ -58,7 +58,8 @@ Rendering render_sites(const std::vector<SoundComponent>& components, const std:
   out.component_timing.assign(components.size(), std::vector<SoundTiming>(n_sites));
   out.group_timing.assign(groups.size(), std::vector<SoundTiming>(n_sites));
 
-  std::vector<Complex> member, sum;
+  std::vector<Complex> member, sum, member_state, tail_state;
+  std::vector<std::pair<std::size_t, std::size_t>> spans;
   std::vector<double> envelope;
   std::vector<SoundTiming> member_timing;
   for (std::size_t g = 0; g < groups.size(); ++g) {
@@ -82,29 +83,47 @@ Rendering render_sites(const std::vector<SoundComponent>& components, const std:
       envelope.resize(len);
       member_timing.clear();
 
+      // Each member on its support [lo, hi): zero before it, below kSupportFraction of its peak
+      // after it. All members are filtered up to the latest support end, hi_max; beyond it the
+      // input is zero and the group's tail is the free response from the sum of their filter
+      // states (linearity), computed once.
+      spans.clear();
+      std::size_t hi_max = 0;
       for (std::size_t m : group.members) {
         const SoundComponent& c = components[m];
-        int ci = component_index(c.kind);
-        double delay = path.delay_s[ci], weight = path.weight[ci];
-        // Evaluate only on the component's own support, zero after it. Before it the filtered
-        // signal stays exactly zero (zero state, zero input), so filtering starts at lo.
+        double delay = path.delay_s[component_index(c.kind)];
         auto lo = std::min(len, static_cast<std::size_t>(std::max(0.0, std::floor((c.start_s + delay) * fs) - first)));
         auto hi = std::min(len, static_cast<std::size_t>(std::ceil((c.support_end_s() + delay) * fs) - first) + 1);
-        hi = std::max(hi, lo);
+        spans.emplace_back(lo, std::max(hi, lo));
+        hi_max = std::max(hi_max, spans.back().second);
+      }
+      tail_state.assign(2 * path.filter.sections.size(), Complex{});
+      for (std::size_t k = 0; k < group.members.size(); ++k) {
+        const SoundComponent& c = components[group.members[k]];
+        const auto [lo, hi] = spans[k];
+        int ci = component_index(c.kind);
+        double delay = path.delay_s[ci], weight = path.weight[ci];
         if (hi > lo)
           c.render(static_cast<double>(first + static_cast<std::int64_t>(lo)) / fs - delay, fs, hi - lo, weight,
                    member.data() + lo);
-        std::fill(member.begin() + static_cast<std::ptrdiff_t>(hi), member.end(), Complex{});
-        filter_in_place(path.filter, member.data() + lo, len - lo);
+        std::fill(member.begin() + static_cast<std::ptrdiff_t>(hi), member.begin() + static_cast<std::ptrdiff_t>(hi_max),
+                  Complex{});
+        // From rest at lo: before it the filtered signal is exactly zero (zero state, zero input).
+        member_state.assign(tail_state.size(), Complex{});
+        filter_continue(path.filter, member.data() + lo, hi_max - lo, member_state.data());
+        for (std::size_t i = 0; i < tail_state.size(); ++i) tail_state[i] += member_state[i];
         std::fill(envelope.begin(), envelope.begin() + static_cast<std::ptrdiff_t>(lo), 0.0);
-        for (std::size_t i = lo; i < len; ++i) {
+        for (std::size_t i = lo; i < hi_max; ++i) {
           envelope[i] = std::sqrt(std::norm(member[i]));  // not std::abs: hypot is slow
           sum[i] += member[i];
         }
-        SoundTiming t = measure_envelope(envelope.data(), len, t_first, fs, kEnvelopeThreshold);
-        out.component_timing[m][s] = t;
+        // The member's site timing on [0, hi_max): its filtered tail beyond stays far below the
+        // 10 % threshold, so peak and crossings are those of the whole filtered component.
+        SoundTiming t = measure_envelope(envelope.data(), hi_max, t_first, fs, kEnvelopeThreshold);
+        out.component_timing[group.members[k]][s] = t;
         member_timing.push_back(t);
       }
+      filter_continue(path.filter, sum.data() + hi_max, len - hi_max, tail_state.data());
       for (std::size_t i = 0; i < len; ++i) envelope[i] = std::sqrt(std::norm(sum[i]));
       out.group_timing[g][s] =
           combine(member_timing, measure_envelope(envelope.data(), len, t_first, fs, kEnvelopeThreshold));
