@@ -76,8 +76,10 @@ std::complex<double> multiply(std::complex<double> a, std::complex<double> b) {
 
 void SoundComponent::render(double t_first_s, double rate_hz, std::size_t n, double weight,
                             std::complex<double>* out) const {
-  constexpr std::size_t kBlock = 256;  // exact re-anchoring keeps the recurrences' drift ~1e-14
-  constexpr std::size_t kRun = 64;     // rotations prepared ahead, in a loop the compiler vectorises
+  // Blocks of kBlock samples, each anchored exactly (exp, sincos) at its first sample: the
+  // recurrences' drift stays ~1e-14. Blocks are independent, so up to kTogether full blocks are
+  // advanced in lockstep: their recurrences overlap in the CPU instead of waiting on one chain.
+  constexpr std::size_t kBlock = 256, kTogether = 4;
   const double h = 1.0 / rate_hz;
   const double decay = std::exp(-h / tau_s), chirp_decay = std::exp(-h / chirp_tau_s);
   const double sweep_cycles = (f_start_hz - f_end_hz) * chirp_tau_s;
@@ -87,41 +89,56 @@ void SoundComponent::render(double t_first_s, double rate_hz, std::size_t n, dou
   const double chirp_step = 2.0 * std::numbers::pi * sweep_cycles * (1.0 - chirp_decay);
   const bool by_rotation = std::fabs(chirp_step) <= kMaxSeriesAngle;
   const double inv_rise = 1.0 / (kEnvelopeOrder * tau_s), scale = weight * amplitude;
-  double chirp_run[kRun], step_re[kRun], step_im[kRun];
+  auto time_at = [&](std::size_t i) { return t_first_s + static_cast<double>(i) * h - start_s; };
+  auto phase_at = [&](double t, double chirp) {
+    return 2.0 * std::numbers::pi * (f_end_hz * t + sweep_cycles * (1.0 - chirp));
+  };
+
   std::size_t i = 0;
+  for (; i < n && time_at(i) <= 0; ++i) out[i] = {0.0, 0.0};
+  if (!by_rotation) {
+    // A chirp too fast for the series at this rate: the phase from its closed form per sample.
+    while (i < n) {
+      const double t0 = time_at(i);
+      double tail = std::exp(kEnvelopeOrder - t0 / tau_s), chirp = std::exp(-t0 / chirp_tau_s);
+      for (std::size_t end = std::min(n, i + kBlock); i < end; ++i, tail *= decay, chirp *= chirp_decay) {
+        const double t = time_at(i), r = t * inv_rise;
+        out[i] = (scale * r * r * tail) * std::polar(1.0, phase_at(t, chirp));
+      }
+    }
+    return;
+  }
+
+  double step_re[kTogether][kBlock], step_im[kTogether][kBlock], chirp_run[kTogether][kBlock];
   while (i < n) {
-    double t = t_first_s + static_cast<double>(i) * h - start_s;
-    if (t <= 0) {
-      out[i++] = {0.0, 0.0};
-      continue;
+    const std::size_t full = std::min(kTogether, (n - i) / kBlock);
+    const std::size_t blocks = std::max<std::size_t>(full, 1), len = full > 0 ? kBlock : n - i;
+    double tail[kTogether], chirp[kTogether];
+    std::complex<double> phasor[kTogether];
+    for (std::size_t b = 0; b < blocks; ++b) {
+      const double t = time_at(i + b * kBlock);
+      tail[b] = std::exp(kEnvelopeOrder - t / tau_s);  // exp(k - x)
+      chirp[b] = std::exp(-t / chirp_tau_s);
+      phasor[b] = std::polar(1.0, phase_at(t, chirp[b]));
     }
-    double tail = std::exp(kEnvelopeOrder - t / tau_s);  // exp(k - x)
-    double chirp = std::exp(-t / chirp_tau_s);
-    std::complex<double> phasor =
-        std::polar(1.0, 2.0 * std::numbers::pi * (f_end_hz * t + sweep_cycles * (1.0 - chirp)));
-    for (std::size_t end = std::min(n, i + kBlock); i < end;) {
-      const std::size_t m = std::min(kRun, end - i);
-      if (by_rotation) {
-        // Per-sample rotations carrier * exp(i chirp_step chirp): independent of each other.
-        for (std::size_t j = 0; j < m; ++j, chirp *= chirp_decay) chirp_run[j] = chirp;
-        for (std::size_t j = 0; j < m; ++j) {
-          const std::complex<double> r = small_rotation(chirp_step * chirp_run[j]);
-          step_re[j] = carrier.real() * r.real() - carrier.imag() * r.imag();
-          step_im[j] = carrier.real() * r.imag() + carrier.imag() * r.real();
-        }
+    // Per-sample rotations carrier * exp(i chirp_step chirp): independent of each other.
+    for (std::size_t j = 0; j < len; ++j)
+      for (std::size_t b = 0; b < blocks; ++b, chirp[b - 1] *= chirp_decay) chirp_run[b][j] = chirp[b];
+    for (std::size_t b = 0; b < blocks; ++b)
+      for (std::size_t j = 0; j < len; ++j) {
+        const std::complex<double> r = small_rotation(chirp_step * chirp_run[b][j]);
+        step_re[b][j] = carrier.real() * r.real() - carrier.imag() * r.imag();
+        step_im[b][j] = carrier.real() * r.imag() + carrier.imag() * r.real();
       }
-      for (std::size_t j = 0; j < m; ++j, ++i) {
-        t = t_first_s + static_cast<double>(i) * h - start_s;
-        double r = t * inv_rise;
-        if (!by_rotation) {
-          phasor = std::polar(1.0, 2.0 * std::numbers::pi * (f_end_hz * t + sweep_cycles * (1.0 - chirp)));
-          chirp *= chirp_decay;
-        }
-        out[i] = (scale * r * r * tail) * phasor;
-        if (by_rotation) phasor = multiply(phasor, {step_re[j], step_im[j]});
-        tail *= decay;
+    for (std::size_t j = 0; j < len; ++j)
+      for (std::size_t b = 0; b < blocks; ++b) {
+        const std::size_t k = i + b * kBlock + j;
+        const double r = time_at(k) * inv_rise;
+        out[k] = (scale * r * r * tail[b]) * phasor[b];
+        phasor[b] = multiply(phasor[b], {step_re[b][j], step_im[b][j]});
+        tail[b] *= decay;
       }
-    }
+    i += blocks * len;
   }
 }
 

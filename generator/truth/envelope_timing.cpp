@@ -1,14 +1,23 @@
 #include "generator/truth/envelope_timing.hpp"
 
+#include <algorithm>
+
 namespace stethogen::gen {
 
 SoundTiming measure_envelope(const double* envelope, std::size_t n, double t0_s, double rate_hz,
                              double threshold_fraction) {
   SoundTiming out;
   if (n == 0) return out;
+  // The first sample holding the maximum. Four running maxima keep the comparisons
+  // independent of each other (one running maximum is a chain of dependent compare-and-selects).
+  double lane[4] = {envelope[0], envelope[0], envelope[0], envelope[0]};
+  std::size_t i = 0;
+  for (; i + 4 <= n; i += 4)
+    for (std::size_t j = 0; j < 4; ++j) lane[j] = envelope[i + j] > lane[j] ? envelope[i + j] : lane[j];
+  double largest = std::max(std::max(lane[0], lane[1]), std::max(lane[2], lane[3]));
+  for (; i < n; ++i) largest = envelope[i] > largest ? envelope[i] : largest;
   std::size_t k = 0;
-  for (std::size_t i = 1; i < n; ++i)
-    if (envelope[i] > envelope[k]) k = i;
+  while (k + 1 < n && envelope[k] != largest) ++k;  // bounded: a NaN never equals
   if (!(envelope[k] > 0)) return out;
 
   // Parabolic refinement of the maximum.
