@@ -86,7 +86,7 @@ Rendering render_sites(const std::vector<SoundComponent>& components, const std:
   // filters run together (filter_continue_together); every site's values are computed exactly
   // as if it were alone.
   std::vector<SiteSegment> seg(n_sites);
-  std::vector<double> envelope;
+  std::vector<double> power;  // |z|^2: the envelope's root only where measure_power reads it
   std::vector<Complex*> data(n_sites), state(n_sites);
   std::vector<std::size_t> count(n_sites);
   // One cascade for every site (plan_transmission); otherwise each site is filtered alone.
@@ -160,15 +160,15 @@ Rendering render_sites(const std::vector<SoundComponent>& components, const std:
         SiteSegment& q = seg[s];
         const std::size_t lo = q.spans[k].first;
         for (std::size_t i = 0; i < q.tail_state.size(); ++i) q.tail_state[i] += q.member_state[i];
-        envelope.resize(q.hi_max);
-        std::fill(envelope.begin(), envelope.begin() + static_cast<std::ptrdiff_t>(lo), 0.0);
+        power.resize(q.hi_max);
+        std::fill(power.begin(), power.begin() + static_cast<std::ptrdiff_t>(lo), 0.0);
         for (std::size_t i = lo; i < q.hi_max; ++i) {
-          envelope[i] = std::sqrt(std::norm(q.member[i]));  // not std::abs: hypot is slow
+          power[i] = std::norm(q.member[i]);
           q.sum[i] += q.member[i];
         }
         // The member's site timing on [0, hi_max): its filtered tail beyond stays far below the
         // 10 % threshold, so peak and crossings are those of the whole filtered component.
-        SoundTiming t = measure_envelope(envelope.data(), q.hi_max, q.t_first_s, fs, kEnvelopeThreshold);
+        SoundTiming t = measure_power(power.data(), q.hi_max, q.t_first_s, fs, kEnvelopeThreshold);
         out.component_timing[m][s] = t;
         q.member_timing.push_back(t);
       }
@@ -182,10 +182,10 @@ Rendering render_sites(const std::vector<SoundComponent>& components, const std:
     filter_sites();
     for (std::size_t s = 0; s < n_sites; ++s) {
       SiteSegment& q = seg[s];
-      envelope.resize(q.len);
-      for (std::size_t i = 0; i < q.len; ++i) envelope[i] = std::sqrt(std::norm(q.sum[i]));
+      power.resize(q.len);
+      for (std::size_t i = 0; i < q.len; ++i) power[i] = std::norm(q.sum[i]);
       out.group_timing[g][s] =
-          combine(q.member_timing, measure_envelope(envelope.data(), q.len, q.t_first_s, fs, kEnvelopeThreshold));
+          combine(q.member_timing, measure_power(power.data(), q.len, q.t_first_s, fs, kEnvelopeThreshold));
       // Add the real part where the segment overlaps the record.
       float* row = out.clean.row(s);
       const std::int64_t last = q.first + static_cast<std::int64_t>(q.len) - 1;

@@ -75,9 +75,9 @@ SoundTiming heart_level_group_timing(const SoundGroup& group, const std::vector<
     components[m].render(t_lo, kHeartGridHz, len, 1.0, part.data());
     for (std::size_t i = 0; i < len; ++i) sum[i] += part[i];
   }
-  std::vector<double> envelope(len);
-  for (std::size_t i = 0; i < len; ++i) envelope[i] = std::sqrt(std::norm(sum[i]));
-  SoundTiming out = measure_envelope(envelope.data(), len, t_lo, kHeartGridHz, kEnvelopeThreshold);
+  std::vector<double> power(len);
+  for (std::size_t i = 0; i < len; ++i) power[i] = std::norm(sum[i]);
+  SoundTiming out = measure_power(power.data(), len, t_lo, kHeartGridHz, kEnvelopeThreshold);
   if (!out.valid()) return out;
   out.onset_s = INFINITY;
   out.offset_s = -INFINITY;
