@@ -247,18 +247,12 @@ void filter_continue_together(const FilterCascade& cascade, std::complex<double>
                               const std::size_t* n, std::complex<double>* const* state, std::size_t count) {
   std::size_t done = 0;
   while (done < count) {
-    // Up to kLanes signals in lockstep over their common length, the rest of each on its own.
+    // kLanes signals in lockstep over their common length, the rest of each (and a signal left
+    // over) on its own.
     const std::size_t lanes = std::min(kLanes, count - done);
     std::size_t common = n[done];
     for (std::size_t c = done; c < done + lanes; ++c) common = std::min(common, n[c]);
-    bool together = false;
-    switch (lanes) {
-      case 2: together = try_lanes<2>(cascade, data + done, common, state + done); break;
-      case 3: together = try_lanes<3>(cascade, data + done, common, state + done); break;
-      case 4: together = try_lanes<4>(cascade, data + done, common, state + done); break;
-      default: break;
-    }
-    if (!together) common = 0;
+    if (lanes < kLanes || !try_lanes<kLanes>(cascade, data + done, common, state + done)) common = 0;
     for (std::size_t c = done; c < done + lanes; ++c) filter_continue(cascade, data[c] + common, n[c] - common, state[c]);
     done += lanes;
   }

@@ -49,9 +49,10 @@ template <typename T>
 void filter_continue(const FilterCascade& cascade, T* data, std::size_t n, T* state);
 
 // filter_continue on count independent signals (signal c: data[c], n[c] samples, state[c]),
-// the same values, computed up to kLanes at a time in lockstep: one signal's recurrence alone
-// waits on its own latency chain, several keep the CPU busy.
-inline constexpr std::size_t kLanes = 4;
+// the same values, computed kLanes at a time in lockstep: one signal's recurrence alone waits on
+// its own latency chain, two keep the CPU busy (four ran slower on the development machine: the
+// states no longer fit in the registers).
+inline constexpr std::size_t kLanes = 2;
 void filter_continue_together(const FilterCascade& cascade, std::complex<double>* const* data,
                               const std::size_t* n, std::complex<double>* const* state, std::size_t count);
 
