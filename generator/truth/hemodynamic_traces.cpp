@@ -58,22 +58,22 @@ std::vector<double> decimation_taps(int factor, double frac) {
   return g;
 }
 
-// Dot product in four lanes (two vector registers; GCC vector extension, packed SSE2 on x86-64).
+// Dot product in eight lanes (four vector registers; GCC vector extension, packed SSE2 on
+// x86-64): four independent sums, so the additions do not wait on each other.
 double dot(const double* a, const double* b, std::size_t n) {
   using Pair = double __attribute__((vector_size(16)));
-  Pair acc0 = {0.0, 0.0}, acc1 = {0.0, 0.0};
+  constexpr std::size_t kPairs = 4, kStep = 2 * kPairs;
+  Pair acc[kPairs] = {};
   std::size_t j = 0;
-  for (; j + 4 <= n; j += 4) {
-    Pair a0, a1, b0, b1;
-    std::memcpy(&a0, a + j, sizeof(Pair));
-    std::memcpy(&a1, a + j + 2, sizeof(Pair));
-    std::memcpy(&b0, b + j, sizeof(Pair));
-    std::memcpy(&b1, b + j + 2, sizeof(Pair));
-    acc0 += a0 * b0;
-    acc1 += a1 * b1;
-  }
-  Pair acc = acc0 + acc1;
-  double sum = acc[0] + acc[1];
+  for (; j + kStep <= n; j += kStep)
+    for (std::size_t p = 0; p < kPairs; ++p) {
+      Pair x, y;
+      std::memcpy(&x, a + j + 2 * p, sizeof(Pair));
+      std::memcpy(&y, b + j + 2 * p, sizeof(Pair));
+      acc[p] += x * y;
+    }
+  Pair total = (acc[0] + acc[1]) + (acc[2] + acc[3]);
+  double sum = total[0] + total[1];
   for (; j < n; ++j) sum += a[j] * b[j];
   return sum;
 }
