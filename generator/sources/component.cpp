@@ -162,7 +162,10 @@ void SoundComponent::render(double t_first_s, double rate_hz, std::size_t n, dou
     }
     // Per-sample rotations carrier * exp(i chirp_step chirp): independent of each other.
     for (std::size_t j = 0; j < len; ++j)
-      for (std::size_t b = 0; b < blocks; ++b, chirp[b - 1] *= chirp_decay) chirp_run[b][j] = chirp[b];
+      for (std::size_t b = 0; b < blocks; ++b) {
+        chirp_run[b][j] = chirp[b];
+        chirp[b] *= chirp_decay;
+      }
     for (std::size_t b = 0; b < blocks; ++b)
       decaying_rotations(carrier, chirp_step, chirp_run[b], len, step_re[b], step_im[b]);
     for (std::size_t j = 0; j < len; ++j)
