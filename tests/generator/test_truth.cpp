@@ -5,6 +5,7 @@
 
 #include "generator/sources/heart_sounds.hpp"
 #include "generator/transmission/render.hpp"
+#include "generator/truth/heart_level.hpp"
 #include "generator/truth/hemodynamic_traces.hpp"
 #include "generator/truth/labels.hpp"
 #include "generator/truth/record_truth.hpp"
@@ -145,5 +146,29 @@ TEST_CASE("hemodynamic traces: the decimation of scipy.signal.resample_poly", "[
   for (std::size_t k = 0; k < h.data.n_samples; ++k) {
     INFO("sample " << k);
     REQUIRE(h.data.at(0, k) == Approx(ref[250 + k]).margin(1e-4));  // float32 storage of ~100 mmHg
+  }
+}
+
+TEST_CASE("heart-level S1/S2 peak: the windowed search finds the peak of the whole summed waveform", "[truth]") {
+  // Two members of one group; the peak of |z1 + z2| searched by brute force on the whole 8 kHz
+  // grid (analytic() at every point) against heart_level_group_timing's window.
+  for (double second_amplitude : {1.0, 0.3, 0.05}) {
+    for (double lag_s : {0.0, 0.012, 0.04}) {
+      std::vector<SoundComponent> cs(2);
+      cs[0].kind = EventKind::M1, cs[0].start_s = 0.1, cs[0].amplitude = 1.0, cs[0].tau_s = 0.009;
+      cs[0].f_start_hz = 120, cs[0].f_end_hz = 45, cs[0].chirp_tau_s = 0.018;
+      cs[1].kind = EventKind::T1, cs[1].start_s = 0.1 + lag_s, cs[1].amplitude = second_amplitude,
+      cs[1].tau_s = 0.012, cs[1].f_start_hz = 90, cs[1].f_end_hz = 38, cs[1].chirp_tau_s = 0.024;
+      SoundGroup group{EventKind::S1, 0, {0, 1}};
+      const SoundTiming t = heart_level_group_timing(group, cs);
+      const double begin = 0.1, end = std::max(cs[0].support_end_s(), cs[1].support_end_s());
+      std::vector<double> env;
+      for (std::size_t i = 0; begin + i / 8000.0 <= end; ++i)
+        env.push_back(std::abs(cs[0].analytic(begin + i / 8000.0) + cs[1].analytic(begin + i / 8000.0)));
+      const SoundTiming full = measure_envelope(env.data(), env.size(), begin, 8000.0, kEnvelopeThreshold);
+      INFO("second amplitude " << second_amplitude << ", lag " << lag_s);
+      REQUIRE(t.peak_s == Approx(full.peak_s).margin(1e-9));
+      REQUIRE(t.peak_envelope == Approx(full.peak_envelope).epsilon(1e-9));
+    }
   }
 }
