@@ -58,24 +58,27 @@ std::vector<double> decimation_taps(int factor, double frac) {
   return g;
 }
 
-// Dot product in eight lanes (four vector registers; GCC vector extension, packed SSE2 on
-// x86-64): four independent sums, so the additions do not wait on each other.
-double dot(const double* a, const double* b, std::size_t n) {
+// out[c] = sum over j < n of taps[j] x[c][j], for C signals at once: each pair of taps is
+// loaded once for all of them, and the C sums (pairs of lanes in vector registers; GCC vector
+// extension, packed SSE2 on x86-64) do not wait on each other.
+template <std::size_t C>
+void dot_all(const double* taps, const double* const* x, std::size_t n, double* out) {
   using Pair = double __attribute__((vector_size(16)));
-  constexpr std::size_t kPairs = 4, kStep = 2 * kPairs;
-  Pair acc[kPairs] = {};
+  Pair acc[C] = {};
   std::size_t j = 0;
-  for (; j + kStep <= n; j += kStep)
-    for (std::size_t p = 0; p < kPairs; ++p) {
-      Pair x, y;
-      std::memcpy(&x, a + j + 2 * p, sizeof(Pair));
-      std::memcpy(&y, b + j + 2 * p, sizeof(Pair));
-      acc[p] += x * y;
+  for (; j + 2 <= n; j += 2) {
+    Pair t;
+    std::memcpy(&t, taps + j, sizeof(Pair));
+    for (std::size_t c = 0; c < C; ++c) {
+      Pair v;
+      std::memcpy(&v, x[c] + j, sizeof(Pair));
+      acc[c] += t * v;
     }
-  Pair total = (acc[0] + acc[1]) + (acc[2] + acc[3]);
-  double sum = total[0] + total[1];
-  for (; j < n; ++j) sum += a[j] * b[j];
-  return sum;
+  }
+  for (std::size_t c = 0; c < C; ++c) {
+    out[c] = acc[c][0] + acc[c][1];
+    if (j < n) out[c] += taps[j] * x[c][j];
+  }
 }
 
 }  // namespace
@@ -101,18 +104,24 @@ HemodynamicTraces hemodynamic_traces(const CirculationResult& circulation, doubl
   const std::vector<double> taps = n_out > 0 ? decimation_taps(factor, start - base) : std::vector<double>{};
   const auto half = static_cast<std::int64_t>(kHalfLengthPerFactor * factor);
   const auto n_in = static_cast<std::int64_t>(s.size());
+  const double* x[n_channels];
   for (std::size_t c = 0; c < n_channels; ++c) {
     out.names.emplace_back(kChannels[c].name);
     out.units.emplace_back(kChannels[c].unit);
-    const double* x = (s.*(kChannels[c].trace)).data();
-    float* row = out.data.row(c);
-    for (std::size_t k = 0; k < n_out; ++k) {
-      // Taps over input samples first .. first + taps - 1; those outside the series count as 0.
-      const std::int64_t first = static_cast<std::int64_t>(base) + static_cast<std::int64_t>(k) * factor - half;
-      const std::int64_t lo = std::max<std::int64_t>(0, -first);
-      const std::int64_t hi = std::min<std::int64_t>(static_cast<std::int64_t>(taps.size()), n_in - first);
-      row[k] = static_cast<float>(dot(taps.data() + lo, x + first + lo, static_cast<std::size_t>(std::max<std::int64_t>(hi - lo, 0))));
-    }
+    const std::vector<double>& trace = s.*(kChannels[c].trace);
+    if (n_out > 0 && trace.size() != s.size()) throw RuntimeFailure("hemodynamic traces: series of unequal length");
+    x[c] = trace.data();
+  }
+  const double* window[n_channels];
+  double value[n_channels];
+  for (std::size_t k = 0; k < n_out; ++k) {
+    // Taps over input samples first .. first + taps - 1; those outside the series count as 0.
+    const std::int64_t first = static_cast<std::int64_t>(base) + static_cast<std::int64_t>(k) * factor - half;
+    const std::int64_t lo = std::max<std::int64_t>(0, -first);
+    const std::int64_t hi = std::min<std::int64_t>(static_cast<std::int64_t>(taps.size()), n_in - first);
+    for (std::size_t c = 0; c < n_channels; ++c) window[c] = x[c] + first + lo;
+    dot_all<n_channels>(taps.data() + lo, window, static_cast<std::size_t>(std::max<std::int64_t>(hi - lo, 0)), value);
+    for (std::size_t c = 0; c < n_channels; ++c) out.data.row(c)[k] = static_cast<float>(value[c]);
   }
   return out;
 }
