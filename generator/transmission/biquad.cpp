@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <cstring>
 #include <numbers>
 
 namespace stethogen::gen {
@@ -85,21 +86,14 @@ void FilterCascade::append(const FilterCascade& other) {
   gain *= other.gain;
 }
 
+namespace {
+
+// Section by section over the whole buffer, for cascades too long for the fused loop below.
 template <typename T>
-void filter_in_place(const FilterCascade& cascade, T* data, std::size_t n) {
-  // Section by section over the whole buffer; first-order sections (b2 = a2 = 0, the Butterworth
-  // first-order designs) skip the second state, whose value would be exactly zero.
-  for (const Biquad& s : cascade.sections) {
-    T z1{}, z2{};
-    if (s.b2 == 0.0 && s.a2 == 0.0) {
-      for (std::size_t i = 0; i < n; ++i) {
-        T x = data[i];
-        T y = s.b0 * x + z1;
-        z1 = s.b1 * x - s.a1 * y;
-        data[i] = y;
-      }
-      continue;
-    }
+void by_section(const FilterCascade& cascade, T* data, std::size_t n, T* state) {
+  for (std::size_t k = 0; k < cascade.sections.size(); ++k) {
+    const Biquad s = cascade.sections[k];
+    T z1 = state[2 * k], z2 = state[2 * k + 1];
     for (std::size_t i = 0; i < n; ++i) {
       T x = data[i];
       T y = s.b0 * x + z1;
@@ -107,12 +101,166 @@ void filter_in_place(const FilterCascade& cascade, T* data, std::size_t n) {
       z2 = s.b2 * x - s.a2 * y;
       data[i] = y;
     }
+    state[2 * k] = z1;
+    state[2 * k + 1] = z2;
   }
   if (cascade.gain != 1.0)
     for (std::size_t i = 0; i < n; ++i) data[i] = data[i] * cascade.gain;
 }
 
+// A complex sample as a pair of doubles (re, im) in one vector register (GCC vector extension:
+// packed SSE2 on x86-64); real coefficients act on both lanes alike.
+using Pair = double __attribute__((vector_size(16)));
+template <typename T> struct Lanes { using type = T; };
+template <> struct Lanes<std::complex<double>> { using type = Pair; };
+
+// All N sections per sample, coefficients and states in registers: the sections' recurrences
+// overlap instead of running one after the other, and the buffer is read and written once.
+// First-order sections (b2 = a2 = 0, the Butterworth first-order designs) skip the second
+// state, whose value would be exactly zero. Per sample and section the arithmetic is that of
+// by_section, in the same order, so both give the same values.
+template <typename T, std::size_t N>
+void fused(const FilterCascade& cascade, T* data, std::size_t n, T* state) {
+  using V = typename Lanes<T>::type;
+  static_assert(sizeof(V) == sizeof(T));
+  double b0[N], b1[N], b2[N], a1[N], a2[N];
+  bool first_order[N];
+  V z1[N], z2[N];
+  for (std::size_t k = 0; k < N; ++k) {
+    const Biquad& s = cascade.sections[k];
+    b0[k] = s.b0, b1[k] = s.b1, b2[k] = s.b2, a1[k] = s.a1, a2[k] = s.a2;
+    first_order[k] = s.b2 == 0.0 && s.a2 == 0.0;
+    std::memcpy(&z1[k], &state[2 * k], sizeof(V));
+    std::memcpy(&z2[k], &state[2 * k + 1], sizeof(V));
+  }
+  const double gain = cascade.gain;
+  const bool scaled = gain != 1.0;
+  for (std::size_t i = 0; i < n; ++i) {
+    V x;
+    std::memcpy(&x, &data[i], sizeof(V));
+#pragma GCC unroll 8
+    for (std::size_t k = 0; k < N; ++k) {
+      V y = b0[k] * x + z1[k];
+      if (first_order[k]) {
+        z1[k] = b1[k] * x - a1[k] * y;
+      } else {
+        z1[k] = b1[k] * x - a1[k] * y + z2[k];
+        z2[k] = b2[k] * x - a2[k] * y;
+      }
+      x = y;
+    }
+    if (scaled) x = x * gain;
+    std::memcpy(static_cast<void*>(&data[i]), &x, sizeof(V));
+  }
+  for (std::size_t k = 0; k < N; ++k) {
+    std::memcpy(static_cast<void*>(&state[2 * k]), &z1[k], sizeof(V));
+    std::memcpy(static_cast<void*>(&state[2 * k + 1]), &z2[k], sizeof(V));
+  }
+}
+
+// C complex signals through the same N sections in lockstep, n samples each: the same
+// arithmetic per signal as fused(), with C independent recurrences for the CPU to overlap.
+template <std::size_t N, std::size_t C>
+void fused_lanes(const FilterCascade& cascade, std::complex<double>* const* data, std::size_t n,
+                 std::complex<double>* const* state) {
+  double b0[N], b1[N], b2[N], a1[N], a2[N];
+  bool first_order[N];
+  Pair z1[C][N], z2[C][N];
+  for (std::size_t k = 0; k < N; ++k) {
+    const Biquad& s = cascade.sections[k];
+    b0[k] = s.b0, b1[k] = s.b1, b2[k] = s.b2, a1[k] = s.a1, a2[k] = s.a2;
+    first_order[k] = s.b2 == 0.0 && s.a2 == 0.0;
+    for (std::size_t c = 0; c < C; ++c) {
+      std::memcpy(&z1[c][k], &state[c][2 * k], sizeof(Pair));
+      std::memcpy(&z2[c][k], &state[c][2 * k + 1], sizeof(Pair));
+    }
+  }
+  const double gain = cascade.gain;
+  const bool scaled = gain != 1.0;
+  for (std::size_t i = 0; i < n; ++i) {
+    Pair x[C];
+#pragma GCC unroll 4
+    for (std::size_t c = 0; c < C; ++c) std::memcpy(&x[c], &data[c][i], sizeof(Pair));
+#pragma GCC unroll 8
+    for (std::size_t k = 0; k < N; ++k) {
+#pragma GCC unroll 4
+      for (std::size_t c = 0; c < C; ++c) {
+        Pair y = b0[k] * x[c] + z1[c][k];
+        if (first_order[k]) {
+          z1[c][k] = b1[k] * x[c] - a1[k] * y;
+        } else {
+          z1[c][k] = b1[k] * x[c] - a1[k] * y + z2[c][k];
+          z2[c][k] = b2[k] * x[c] - a2[k] * y;
+        }
+        x[c] = y;
+      }
+    }
+#pragma GCC unroll 4
+    for (std::size_t c = 0; c < C; ++c) {
+      if (scaled) x[c] = x[c] * gain;
+      std::memcpy(static_cast<void*>(&data[c][i]), &x[c], sizeof(Pair));
+    }
+  }
+  for (std::size_t c = 0; c < C; ++c)
+    for (std::size_t k = 0; k < N; ++k) {
+      std::memcpy(static_cast<void*>(&state[c][2 * k]), &z1[c][k], sizeof(Pair));
+      std::memcpy(static_cast<void*>(&state[c][2 * k + 1]), &z2[c][k], sizeof(Pair));
+    }
+}
+
+template <std::size_t C>
+bool try_lanes(const FilterCascade& cascade, std::complex<double>* const* data, std::size_t n,
+               std::complex<double>* const* state) {
+  switch (cascade.sections.size()) {
+    case 1: fused_lanes<1, C>(cascade, data, n, state); return true;
+    case 2: fused_lanes<2, C>(cascade, data, n, state); return true;
+    case 3: fused_lanes<3, C>(cascade, data, n, state); return true;
+    case 4: fused_lanes<4, C>(cascade, data, n, state); return true;
+    case 5: fused_lanes<5, C>(cascade, data, n, state); return true;
+    default: return false;
+  }
+}
+
+}  // namespace
+
+template <typename T>
+void filter_continue(const FilterCascade& cascade, T* data, std::size_t n, T* state) {
+  switch (cascade.sections.size()) {
+    case 0: if (cascade.gain != 1.0) for (std::size_t i = 0; i < n; ++i) data[i] = data[i] * cascade.gain; return;
+    case 1: return fused<T, 1>(cascade, data, n, state);
+    case 2: return fused<T, 2>(cascade, data, n, state);
+    case 3: return fused<T, 3>(cascade, data, n, state);
+    case 4: return fused<T, 4>(cascade, data, n, state);
+    case 5: return fused<T, 5>(cascade, data, n, state);
+    case 6: return fused<T, 6>(cascade, data, n, state);
+    default: return by_section(cascade, data, n, state);
+  }
+}
+
+template <typename T>
+void filter_in_place(const FilterCascade& cascade, T* data, std::size_t n) {
+  std::vector<T> rest(2 * cascade.sections.size(), T{});
+  filter_continue(cascade, data, n, rest.data());
+}
+
+void filter_continue_together(const FilterCascade& cascade, std::complex<double>* const* data,
+                              const std::size_t* n, std::complex<double>* const* state, std::size_t count) {
+  std::size_t done = 0;
+  while (done < count) {
+    // kLanes signals in lockstep over their common length, the rest of each (and a signal left
+    // over) on its own.
+    const std::size_t lanes = std::min(kLanes, count - done);
+    std::size_t common = n[done];
+    for (std::size_t c = done; c < done + lanes; ++c) common = std::min(common, n[c]);
+    if (lanes < kLanes || !try_lanes<kLanes>(cascade, data + done, common, state + done)) common = 0;
+    for (std::size_t c = done; c < done + lanes; ++c) filter_continue(cascade, data[c] + common, n[c] - common, state[c]);
+    done += lanes;
+  }
+}
+
 template void filter_in_place<double>(const FilterCascade&, double*, std::size_t);
 template void filter_in_place<std::complex<double>>(const FilterCascade&, std::complex<double>*, std::size_t);
+template void filter_continue<std::complex<double>>(const FilterCascade&, std::complex<double>*, std::size_t,
+                                                     std::complex<double>*);
 
 }  // namespace stethogen::gen

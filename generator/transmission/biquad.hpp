@@ -42,5 +42,18 @@ double max_corner_hz(double fs_hz);
 // std::complex<double> (real coefficients act on real and imaginary parts alike).
 template <typename T>
 void filter_in_place(const FilterCascade& cascade, T* data, std::size_t n);
+// The same from a given state, 2 values per section (all zero = at rest), left in state after the
+// last sample so that a later call continues the signal. The state is before the cascade's gain.
+// The filter is linear: the state of a sum of signals is the sum of their states.
+template <typename T>
+void filter_continue(const FilterCascade& cascade, T* data, std::size_t n, T* state);
+
+// filter_continue on count independent signals (signal c: data[c], n[c] samples, state[c]),
+// the same values, computed kLanes at a time in lockstep: one signal's recurrence alone waits on
+// its own latency chain, two keep the CPU busy (four ran slower on the development machine: the
+// states no longer fit in the registers).
+inline constexpr std::size_t kLanes = 2;
+void filter_continue_together(const FilterCascade& cascade, std::complex<double>* const* data,
+                              const std::size_t* n, std::complex<double>* const* state, std::size_t count);
 
 }  // namespace stethogen::gen

@@ -49,6 +49,30 @@ std::vector<SoundGroup> group_components(const std::vector<SoundComponent>& comp
   return groups;
 }
 
+namespace {
+
+// One site's segment of a group: samples first .. first + len - 1 of the record grid, every
+// member's support [lo, hi) in it, and the buffers the site works in.
+struct SiteSegment {
+  std::int64_t first = 0;
+  std::size_t len = 0, hi_max = 0;
+  double t_first_s = 0;
+  std::vector<std::pair<std::size_t, std::size_t>> spans;
+  std::vector<std::complex<double>> member, sum, member_state, tail_state;
+  std::vector<SoundTiming> member_timing;
+};
+
+bool same_cascade(const FilterCascade& a, const FilterCascade& b) {
+  if (a.gain != b.gain || a.sections.size() != b.sections.size()) return false;
+  for (std::size_t k = 0; k < a.sections.size(); ++k) {
+    const Biquad &x = a.sections[k], &y = b.sections[k];
+    if (x.b0 != y.b0 || x.b1 != y.b1 || x.b2 != y.b2 || x.a1 != y.a1 || x.a2 != y.a2) return false;
+  }
+  return true;
+}
+
+}  // namespace
+
 Rendering render_sites(const std::vector<SoundComponent>& components, const std::vector<SoundGroup>& groups,
                        const TransmissionPlan& plan, std::size_t n_samples) {
   const double fs = plan.sample_rate_hz;
@@ -58,13 +82,28 @@ Rendering render_sites(const std::vector<SoundComponent>& components, const std:
   out.component_timing.assign(components.size(), std::vector<SoundTiming>(n_sites));
   out.group_timing.assign(groups.size(), std::vector<SoundTiming>(n_sites));
 
-  std::vector<Complex> member, sum;
-  std::vector<double> envelope;
-  std::vector<SoundTiming> member_timing;
+  // The sites of a group are worked in lockstep where they are independent, so that their
+  // filters run together (filter_continue_together); every site's values are computed exactly
+  // as if it were alone.
+  std::vector<SiteSegment> seg(n_sites);
+  std::vector<double> power;  // |z|^2: the envelope's root only where measure_power reads it
+  std::vector<Complex*> data(n_sites), state(n_sites);
+  std::vector<std::size_t> count(n_sites);
+  // One cascade for every site (plan_transmission); otherwise each site is filtered alone.
+  bool shared_filter = true;
+  for (const SitePath& p : plan.sites) shared_filter = shared_filter && same_cascade(p.filter, plan.sites[0].filter);
+  auto filter_sites = [&] {
+    if (shared_filter) {
+      filter_continue_together(plan.sites[0].filter, data.data(), count.data(), state.data(), n_sites);
+      return;
+    }
+    for (std::size_t s = 0; s < n_sites; ++s) filter_continue(plan.sites[s].filter, data[s], count[s], state[s]);
+  };
   for (std::size_t g = 0; g < groups.size(); ++g) {
     const SoundGroup& group = groups[g];
     for (std::size_t s = 0; s < n_sites; ++s) {
       const SitePath& path = plan.sites[s];
+      SiteSegment& q = seg[s];
       double begin_s = INFINITY, end_s = -INFINITY;
       for (std::size_t m : group.members) {
         const SoundComponent& c = components[m];
@@ -73,47 +112,86 @@ Rendering render_sites(const std::vector<SoundComponent>& components, const std:
         end_s = std::max(end_s, c.support_end_s() + delay);
       }
       end_s += plan.filter_tail_s;
-      auto first = static_cast<std::int64_t>(std::floor(begin_s * fs));
+      q.first = static_cast<std::int64_t>(std::floor(begin_s * fs));
       auto last = static_cast<std::int64_t>(std::ceil(end_s * fs));
-      auto len = static_cast<std::size_t>(last - first + 1);
-      double t_first = static_cast<double>(first) / fs;
-      sum.assign(len, Complex{});
-      member.resize(len);
-      envelope.resize(len);
-      member_timing.clear();
-
+      q.len = static_cast<std::size_t>(last - q.first + 1);
+      q.t_first_s = static_cast<double>(q.first) / fs;
+      q.sum.assign(q.len, Complex{});
+      q.member.resize(q.len);
+      q.member_timing.clear();
+      // Each member on its support [lo, hi): zero before it, below kSupportFraction of its peak
+      // after it. All members are filtered up to the latest support end, hi_max; beyond it the
+      // input is zero and the group's tail is the free response from the sum of their filter
+      // states (linearity), computed once.
+      q.spans.clear();
+      q.hi_max = 0;
       for (std::size_t m : group.members) {
         const SoundComponent& c = components[m];
-        int ci = component_index(c.kind);
-        double delay = path.delay_s[ci], weight = path.weight[ci];
-        // Evaluate only on the component's own support, zero after it. Before it the filtered
-        // signal stays exactly zero (zero state, zero input), so filtering starts at lo.
-        auto lo = std::min(len, static_cast<std::size_t>(std::max(0.0, std::floor((c.start_s + delay) * fs) - first)));
-        auto hi = std::min(len, static_cast<std::size_t>(std::ceil((c.support_end_s() + delay) * fs) - first) + 1);
-        hi = std::max(hi, lo);
-        if (hi > lo)
-          c.render(static_cast<double>(first + static_cast<std::int64_t>(lo)) / fs - delay, fs, hi - lo, weight,
-                   member.data() + lo);
-        std::fill(member.begin() + static_cast<std::ptrdiff_t>(hi), member.end(), Complex{});
-        filter_in_place(path.filter, member.data() + lo, len - lo);
-        std::fill(envelope.begin(), envelope.begin() + static_cast<std::ptrdiff_t>(lo), 0.0);
-        for (std::size_t i = lo; i < len; ++i) {
-          envelope[i] = std::sqrt(std::norm(member[i]));  // not std::abs: hypot is slow
-          sum[i] += member[i];
-        }
-        SoundTiming t = measure_envelope(envelope.data(), len, t_first, fs, kEnvelopeThreshold);
-        out.component_timing[m][s] = t;
-        member_timing.push_back(t);
+        double delay = path.delay_s[component_index(c.kind)];
+        auto lo = std::min(q.len, static_cast<std::size_t>(std::max(0.0, std::floor((c.start_s + delay) * fs) - q.first)));
+        auto hi = std::min(q.len, static_cast<std::size_t>(std::ceil((c.support_end_s() + delay) * fs) - q.first) + 1);
+        q.spans.emplace_back(lo, std::max(hi, lo));
+        q.hi_max = std::max(q.hi_max, q.spans.back().second);
       }
-      for (std::size_t i = 0; i < len; ++i) envelope[i] = std::sqrt(std::norm(sum[i]));
-      out.group_timing[g][s] =
-          combine(member_timing, measure_envelope(envelope.data(), len, t_first, fs, kEnvelopeThreshold));
+      q.tail_state.assign(2 * path.filter.sections.size(), Complex{});
+    }
 
+    for (std::size_t k = 0; k < group.members.size(); ++k) {
+      const std::size_t m = group.members[k];
+      const SoundComponent& c = components[m];
+      const int ci = component_index(c.kind);
+      for (std::size_t s = 0; s < n_sites; ++s) {
+        SiteSegment& q = seg[s];
+        const auto [lo, hi] = q.spans[k];
+        double delay = plan.sites[s].delay_s[ci], weight = plan.sites[s].weight[ci];
+        if (hi > lo)
+          c.render(static_cast<double>(q.first + static_cast<std::int64_t>(lo)) / fs - delay, fs, hi - lo, weight,
+                   q.member.data() + lo);
+        std::fill(q.member.begin() + static_cast<std::ptrdiff_t>(hi), q.member.begin() + static_cast<std::ptrdiff_t>(q.hi_max),
+                  Complex{});
+        // From rest at lo: before it the filtered signal is exactly zero (zero state, zero input).
+        q.member_state.assign(q.tail_state.size(), Complex{});
+        data[s] = q.member.data() + lo;
+        count[s] = q.hi_max - lo;
+        state[s] = q.member_state.data();
+      }
+      filter_sites();
+      for (std::size_t s = 0; s < n_sites; ++s) {
+        SiteSegment& q = seg[s];
+        const std::size_t lo = q.spans[k].first;
+        for (std::size_t i = 0; i < q.tail_state.size(); ++i) q.tail_state[i] += q.member_state[i];
+        power.resize(q.hi_max);
+        std::fill(power.begin(), power.begin() + static_cast<std::ptrdiff_t>(lo), 0.0);
+        for (std::size_t i = lo; i < q.hi_max; ++i) {
+          power[i] = std::norm(q.member[i]);
+          q.sum[i] += q.member[i];
+        }
+        // The member's site timing on [0, hi_max): its filtered tail beyond stays far below the
+        // 10 % threshold, so peak and crossings are those of the whole filtered component.
+        SoundTiming t = measure_power(power.data(), q.hi_max, q.t_first_s, fs, kEnvelopeThreshold);
+        out.component_timing[m][s] = t;
+        q.member_timing.push_back(t);
+      }
+    }
+
+    for (std::size_t s = 0; s < n_sites; ++s) {
+      data[s] = seg[s].sum.data() + seg[s].hi_max;
+      count[s] = seg[s].len - seg[s].hi_max;
+      state[s] = seg[s].tail_state.data();
+    }
+    filter_sites();
+    for (std::size_t s = 0; s < n_sites; ++s) {
+      SiteSegment& q = seg[s];
+      power.resize(q.len);
+      for (std::size_t i = 0; i < q.len; ++i) power[i] = std::norm(q.sum[i]);
+      out.group_timing[g][s] =
+          combine(q.member_timing, measure_power(power.data(), q.len, q.t_first_s, fs, kEnvelopeThreshold));
       // Add the real part where the segment overlaps the record.
       float* row = out.clean.row(s);
-      std::int64_t lo = std::max<std::int64_t>(first, 0);
+      const std::int64_t last = q.first + static_cast<std::int64_t>(q.len) - 1;
+      std::int64_t lo = std::max<std::int64_t>(q.first, 0);
       std::int64_t hi = std::min<std::int64_t>(last, static_cast<std::int64_t>(n_samples) - 1);
-      for (std::int64_t k = lo; k <= hi; ++k) row[k] += static_cast<float>(sum[k - first].real());
+      for (std::int64_t k = lo; k <= hi; ++k) row[k] += static_cast<float>(q.sum[k - q.first].real());
     }
   }
   return out;

@@ -65,6 +65,29 @@ double quantisation_step(SampleFormat format) {
   return 0.0;
 }
 
+namespace {
+
+// Appends the runs of samples of x (times gain) beyond [-1, upper] as clipping artifacts.
+void find_clipping(const float* x, std::size_t n, double gain, double upper, std::int32_t site, int rate_hz,
+                   std::vector<Artifact>& clipped) {
+  std::size_t run_start = 0;
+  double run_peak = 0;
+  bool in_run = false;
+  for (std::size_t i = 0; i <= n; ++i) {
+    double v = i < n ? x[i] * gain : 0.0;
+    bool over = v > upper || v < -1.0;
+    if (over && !in_run) { in_run = true; run_start = i; run_peak = 0; }
+    if (over) run_peak = std::max(run_peak, std::abs(v));
+    if (!over && in_run) {
+      in_run = false;
+      clipped.push_back({"clipping", site, static_cast<double>(run_start) / rate_hz, static_cast<double>(i) / rate_hz,
+                         20.0 * std::log10(run_peak)});
+    }
+  }
+}
+
+}  // namespace
+
 std::vector<Artifact> apply_output_stage(SiteArray<float>& signal, double gain_db, SampleFormat format,
                                          int sample_rate_hz) {
   const double gain = std::pow(10.0, gain_db / 20.0);
@@ -74,24 +97,19 @@ std::vector<Artifact> apply_output_stage(SiteArray<float>& signal, double gain_d
   std::vector<Artifact> clipped;
   for (std::size_t s = 0; s < signal.n_sites; ++s) {
     float* x = signal.row(s);
-    std::size_t run_start = 0;
-    double run_peak = 0;
-    bool in_run = false;
-    for (std::size_t i = 0; i <= signal.n_samples; ++i) {
-      double v = i < signal.n_samples ? x[i] * gain : 0.0;
-      bool over = v > upper || v < -1.0;
-      if (over && !in_run) { in_run = true; run_start = i; run_peak = 0; }
-      if (over) run_peak = std::max(run_peak, std::abs(v));
-      if (!over && in_run) {
-        in_run = false;
-        clipped.push_back({"clipping", static_cast<std::int32_t>(s),
-                           static_cast<double>(run_start) / sample_rate_hz,
-                           static_cast<double>(i) / sample_rate_hz, 20.0 * std::log10(run_peak)});
-      }
-      if (i == signal.n_samples) break;
-      v = std::clamp(v, -1.0, upper);
-      if (step > 0) v = std::round(v / step) * step;
-      x[i] = static_cast<float>(v);
+    const std::size_t n = signal.n_samples;
+    // Branch-free passes the compiler vectorises; the run search only where something clips.
+    float lowest = 0, highest = 0;
+    for (std::size_t i = 0; i < n; ++i) {
+      lowest = std::min(lowest, x[i]);
+      highest = std::max(highest, x[i]);
+    }
+    if (lowest * gain < -1.0 || highest * gain > upper)
+      find_clipping(x, n, gain, upper, static_cast<std::int32_t>(s), sample_rate_hz, clipped);
+    if (step > 0) {
+      for (std::size_t i = 0; i < n; ++i) x[i] = static_cast<float>(std::round(std::clamp(x[i] * gain, -1.0, upper) / step) * step);
+    } else {
+      for (std::size_t i = 0; i < n; ++i) x[i] = static_cast<float>(std::clamp(x[i] * gain, -1.0, upper));
     }
   }
   return clipped;

@@ -1,21 +1,37 @@
 #include "generator/truth/envelope_timing.hpp"
 
-namespace stethogen::gen {
+#include <algorithm>
+#include <cmath>
 
-SoundTiming measure_envelope(const double* envelope, std::size_t n, double t0_s, double rate_hz,
-                             double threshold_fraction) {
-  SoundTiming out;
-  if (n == 0) return out;
+namespace stethogen::gen {
+namespace {
+
+// The first index holding the largest value. Four running maxima keep the comparisons
+// independent of each other (one running maximum is a chain of dependent compare-and-selects).
+std::size_t first_argmax(const double* x, std::size_t n) {
+  double lane[4] = {x[0], x[0], x[0], x[0]};
+  std::size_t i = 0;
+  for (; i + 4 <= n; i += 4)
+    for (std::size_t j = 0; j < 4; ++j) lane[j] = x[i + j] > lane[j] ? x[i + j] : lane[j];
+  double largest = std::max(std::max(lane[0], lane[1]), std::max(lane[2], lane[3]));
+  for (; i < n; ++i) largest = x[i] > largest ? x[i] : largest;
   std::size_t k = 0;
-  for (std::size_t i = 1; i < n; ++i)
-    if (envelope[i] > envelope[k]) k = i;
-  if (!(envelope[k] > 0)) return out;
+  while (k + 1 < n && x[k] != largest) ++k;  // bounded: a NaN never equals
+  return k;
+}
+
+// The measurement on envelope values env(i), i < n, whose first maximum is at k.
+template <typename Envelope>
+SoundTiming measure(const Envelope& env, std::size_t n, std::size_t k, double t0_s, double rate_hz,
+                    double threshold_fraction) {
+  SoundTiming out;
+  if (!(env(k) > 0)) return out;
 
   // Parabolic refinement of the maximum.
   double peak_pos = static_cast<double>(k);
-  double peak_value = envelope[k];
+  double peak_value = env(k);
   if (k > 0 && k + 1 < n) {
-    double a = envelope[k - 1], b = envelope[k], c = envelope[k + 1];
+    double a = env(k - 1), b = env(k), c = env(k + 1);
     double denom = a - 2.0 * b + c;
     if (denom < 0) {
       double d = 0.5 * (a - c) / denom;
@@ -28,16 +44,18 @@ SoundTiming measure_envelope(const double* envelope, std::size_t n, double t0_s,
   // Walk outwards from the peak to the first samples below the threshold.
   double onset_pos = 0.0;
   for (std::size_t i = k; i > 0; --i) {
-    if (envelope[i - 1] < threshold) {
-      double lo = envelope[i - 1], hi = envelope[i];
+    double lo = env(i - 1);
+    if (lo < threshold) {
+      double hi = env(i);
       onset_pos = static_cast<double>(i - 1) + (threshold - lo) / (hi - lo);
       break;
     }
   }
   double offset_pos = static_cast<double>(n - 1);
   for (std::size_t i = k; i + 1 < n; ++i) {
-    if (envelope[i + 1] < threshold) {
-      double hi = envelope[i], lo = envelope[i + 1];
+    double lo = env(i + 1);
+    if (lo < threshold) {
+      double hi = env(i);
       offset_pos = static_cast<double>(i) + (hi - threshold) / (hi - lo);
       break;
     }
@@ -47,6 +65,34 @@ SoundTiming measure_envelope(const double* envelope, std::size_t n, double t0_s,
   out.offset_s = t0_s + offset_pos / rate_hz;
   out.peak_envelope = peak_value;
   return out;
+}
+
+}  // namespace
+
+SoundTiming measure_envelope(const double* envelope, std::size_t n, double t0_s, double rate_hz,
+                             double threshold_fraction) {
+  if (n == 0) return {};
+  auto env = [envelope](std::size_t i) { return envelope[i]; };
+  return measure(env, n, first_argmax(envelope, n), t0_s, rate_hz, threshold_fraction);
+}
+
+SoundTiming measure_power(const double* power, std::size_t n, double t0_s, double rate_hz,
+                          double threshold_fraction) {
+  if (n == 0) return {};
+  auto env = [power](std::size_t i) { return std::sqrt(power[i]); };
+  // The first maximum of sqrt(power): sqrt is monotone, but distinct powers can round to the
+  // same root, so an earlier sample whose root equals the largest root comes first. Such a
+  // power lies above (the next smaller root)^2, with a margin for the rounding of the square.
+  std::size_t k = first_argmax(power, n);
+  const double root = env(k);
+  const double below = std::nextafter(root, 0.0);
+  const double floor_power = below * below * (1.0 - 1e-15);
+  for (std::size_t i = 0; i < k; ++i)
+    if (power[i] >= floor_power && env(i) == root) {
+      k = i;
+      break;
+    }
+  return measure(env, n, k, t0_s, rate_hz, threshold_fraction);
 }
 
 }  // namespace stethogen::gen

@@ -17,5 +17,10 @@ struct SoundTiming {
 // envelope[i] is at time t0_s + i / rate_hz. Returns an invalid timing for an all-zero envelope.
 SoundTiming measure_envelope(const double* envelope, std::size_t n, double t0_s, double rate_hz,
                              double threshold_fraction);
+// The same from the squared envelope (power[i] = envelope[i]^2, e.g. std::norm of the analytic
+// signal) with the same result as measure_envelope on sqrt(power): the root is taken only for
+// the samples the measurement reads, not for the whole sound.
+SoundTiming measure_power(const double* power, std::size_t n, double t0_s, double rate_hz,
+                          double threshold_fraction);
 
 }  // namespace stethogen::gen

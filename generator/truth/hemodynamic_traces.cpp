@@ -1,9 +1,9 @@
 #include "generator/truth/hemodynamic_traces.hpp"
 
-#include <soxr.h>
-
 #include <algorithm>
 #include <cmath>
+#include <cstring>
+#include <numbers>
 #include <string>
 
 #include "core/error.hpp"
@@ -32,6 +32,55 @@ constexpr Channel kChannels[] = {
     {"pulmonic_flow", "mL/s", &HemodynamicSeries::q_pulmonic},
 };
 
+// The decimation filter of scipy.signal.resample_poly(x, 1, q) (its default design): a
+// Kaiser-windowed sinc (beta 5) with cutoff at the output's Nyquist frequency, 10 q input
+// samples either side, normalised to unit gain at 0 Hz.
+constexpr double kKaiserBeta = 5.0;
+constexpr int kHalfLengthPerFactor = 10;
+
+// Taps g[k], k = 0 .. 2 half + 1, for input samples base - half + k around an output that lies
+// frac (in [0, 1)) input samples after base: the continuous filter evaluated at frac - (k - half).
+std::vector<double> decimation_taps(int factor, double frac) {
+  const int half = kHalfLengthPerFactor * factor;
+  const double cutoff = 1.0 / factor;  // of the input's Nyquist frequency
+  std::vector<double> g(2 * half + 2);
+  double sum = 0;
+  for (int k = 0; k < static_cast<int>(g.size()); ++k) {
+    double u = frac - (k - half);  // distance from the output, input samples
+    double r = u / half;
+    if (std::abs(r) > 1.0) continue;
+    double window = std::cyl_bessel_i(0.0, kKaiserBeta * std::sqrt(1.0 - r * r)) / std::cyl_bessel_i(0.0, kKaiserBeta);
+    double x = std::numbers::pi * cutoff * u;
+    g[k] = window * cutoff * (x == 0.0 ? 1.0 : std::sin(x) / x);
+    sum += g[k];
+  }
+  for (double& v : g) v /= sum;
+  return g;
+}
+
+// out[c] = sum over j < n of taps[j] x[c][j], for C signals at once: each pair of taps is
+// loaded once for all of them, and the C sums (pairs of lanes in vector registers; GCC vector
+// extension, packed SSE2 on x86-64) do not wait on each other.
+template <std::size_t C>
+void dot_all(const double* taps, const double* const* x, std::size_t n, double* out) {
+  using Pair = double __attribute__((vector_size(16)));
+  Pair acc[C] = {};
+  std::size_t j = 0;
+  for (; j + 2 <= n; j += 2) {
+    Pair t;
+    std::memcpy(&t, taps + j, sizeof(Pair));
+    for (std::size_t c = 0; c < C; ++c) {
+      Pair v;
+      std::memcpy(&v, x[c] + j, sizeof(Pair));
+      acc[c] += t * v;
+    }
+  }
+  for (std::size_t c = 0; c < C; ++c) {
+    out[c] = acc[c][0] + acc[c][1];
+    if (j < n) out[c] += taps[j] * x[c][j];
+  }
+}
+
 }  // namespace
 
 HemodynamicTraces hemodynamic_traces(const CirculationResult& circulation, double rate_hz) {
@@ -43,28 +92,36 @@ HemodynamicTraces hemodynamic_traces(const CirculationResult& circulation, doubl
   if (s.size() >= 2) n_out = static_cast<std::size_t>(std::ceil(circulation.duration_s * rate_hz - 1e-9));
   out.data = SiteArray<float>(n_channels, n_out);
 
-  const std::size_t n_resampled = static_cast<std::size_t>(std::ceil(s.size() * rate_hz / s.rate_hz)) + 1;
-  std::vector<double> resampled(n_resampled);
-  soxr_io_spec_t io = soxr_io_spec(SOXR_FLOAT64_I, SOXR_FLOAT64_I);
-  soxr_quality_spec_t quality = soxr_quality_spec(SOXR_HQ, 0);
+  const double ratio = s.rate_hz / rate_hz;
+  const int factor = static_cast<int>(std::lround(ratio));
+  if (n_out > 0 && (factor < 1 || std::abs(ratio - factor) > 1e-9))
+    throw RuntimeFailure("hemodynamic traces: the series rate " + std::to_string(s.rate_hz) +
+                         " Hz is not a whole multiple of the trace rate " + std::to_string(rate_hz) + " Hz");
+  // Output k (time k / rate) lies at input position (k / rate - t0) * series rate = start + k
+  // factor: the same fractional phase for every output, so one set of taps serves them all.
+  const double start = -s.t0_s * s.rate_hz;
+  const double base = std::floor(start);
+  const std::vector<double> taps = n_out > 0 ? decimation_taps(factor, start - base) : std::vector<double>{};
+  const auto half = static_cast<std::int64_t>(kHalfLengthPerFactor * factor);
+  const auto n_in = static_cast<std::int64_t>(s.size());
+  const double* x[n_channels];
   for (std::size_t c = 0; c < n_channels; ++c) {
     out.names.emplace_back(kChannels[c].name);
     out.units.emplace_back(kChannels[c].unit);
-    if (out.data.n_samples == 0) continue;
     const std::vector<double>& trace = s.*(kChannels[c].trace);
-    std::size_t done = 0;
-    soxr_error_t err = soxr_oneshot(s.rate_hz, rate_hz, 1, trace.data(), trace.size(), nullptr,
-                                    resampled.data(), resampled.size(), &done, &io, &quality, nullptr);
-    if (err) throw RuntimeFailure(std::string("resampling hemodynamic traces: ") + err);
-    // Resampled sample j lies at t0 + j / rate; interpolate onto the record grid k / rate.
-    float* row = out.data.row(c);
-    for (std::size_t k = 0; k < n_out; ++k) {
-      double pos = (static_cast<double>(k) / rate_hz - s.t0_s) * rate_hz;
-      auto j = static_cast<std::size_t>(std::max(0.0, std::floor(pos)));
-      if (j + 1 >= done) j = done >= 2 ? done - 2 : 0;
-      double frac = std::clamp(pos - static_cast<double>(j), 0.0, 1.0);
-      row[k] = static_cast<float>(resampled[j] + frac * (resampled[j + 1] - resampled[j]));
-    }
+    if (n_out > 0 && trace.size() != s.size()) throw RuntimeFailure("hemodynamic traces: series of unequal length");
+    x[c] = trace.data();
+  }
+  const double* window[n_channels];
+  double value[n_channels];
+  for (std::size_t k = 0; k < n_out; ++k) {
+    // Taps over input samples first .. first + taps - 1; those outside the series count as 0.
+    const std::int64_t first = static_cast<std::int64_t>(base) + static_cast<std::int64_t>(k) * factor - half;
+    const std::int64_t lo = std::max<std::int64_t>(0, -first);
+    const std::int64_t hi = std::min<std::int64_t>(static_cast<std::int64_t>(taps.size()), n_in - first);
+    for (std::size_t c = 0; c < n_channels; ++c) window[c] = x[c] + first + lo;
+    dot_all<n_channels>(taps.data() + lo, window, static_cast<std::size_t>(std::max<std::int64_t>(hi - lo, 0)), value);
+    for (std::size_t c = 0; c < n_channels; ++c) out.data.row(c)[k] = static_cast<float>(value[c]);
   }
   return out;
 }

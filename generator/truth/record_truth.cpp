@@ -57,6 +57,16 @@ std::int32_t first_recorded_beat(const CirculationResult& c) {
   return c.beats.empty() ? 0 : c.beats.back().beat + 1;
 }
 
+ValveClosures valve_closures(const CirculationResult& c) {
+  ValveClosures out;
+  for (const ValveTransition& v : c.transitions) {
+    if (v.opening) continue;
+    bool av = v.valve == Valve::mitral || v.valve == Valve::tricuspid;
+    (av ? out.av_s : out.semilunar_s).push_back(v.time_s);
+  }
+  return out;
+}
+
 }  // namespace
 
 std::int64_t sample_index(double time_s, int sample_rate_hz) {
@@ -138,8 +148,9 @@ Truth build_truth(const TruthInputs& in) {
   }
 
   out.states = SiteArray<std::uint8_t>(n_sites, in.n_samples);
+  const ValveClosures closures = valve_closures(circ);
   for (std::size_t s = 0; s < n_sites; ++s)
-    label_states(std::move(site_sounds[s]), in.sample_rate_hz, out.states.row(s), in.n_samples);
+    label_states(std::move(site_sounds[s]), closures, in.sample_rate_hz, out.states.row(s), in.n_samples);
   return out;
 }
 

@@ -165,3 +165,54 @@ TEST_CASE("output stage: gain, clipping at full scale and 16-bit quantisation", 
   REQUIRE(quantisation_step(SampleFormat::int24) == std::ldexp(1.0, -23));
   REQUIRE(quantisation_step(SampleFormat::float32) == 0.0);
 }
+
+TEST_CASE("filtering in pieces with the carried state equals filtering at once", "[filters]") {
+  const double fs = 4000;
+  FilterCascade c = chest_wall_filter(30, fs);
+  c.append(sensor_response(Sensor::acoustic_bell, fs));  // first- and second-order sections
+  std::vector<std::complex<double>> x(600), y(600);
+  for (std::size_t i = 0; i < x.size(); ++i)
+    x[i] = std::polar(std::exp(-0.01 * i), 2.0 * std::numbers::pi * 70.0 * i / fs);
+  std::vector<std::complex<double>> whole = x;
+  filter_in_place(c, whole.data(), whole.size());
+  // Two pieces, the second continuing from the first's state: the same arithmetic, bit for bit.
+  std::vector<std::complex<double>> pieces = x, state(2 * c.sections.size());
+  filter_continue(c, pieces.data(), 250, state.data());
+  filter_continue(c, pieces.data() + 250, pieces.size() - 250, state.data());
+  for (std::size_t i = 0; i < x.size(); ++i) REQUIRE(pieces[i] == whole[i]);
+  // Linearity: the input's first 250 samples and its rest filtered apart add up to the whole,
+  // the first part's tail being the free response from its state (zero input after it).
+  std::vector<std::complex<double>> head(x.size()), rest(x.size()), head_state(2 * c.sections.size());
+  std::copy(x.begin(), x.begin() + 250, head.begin());
+  std::copy(x.begin() + 250, x.end(), rest.begin() + 250);
+  filter_continue(c, head.data(), 250, head_state.data());
+  filter_continue(c, head.data() + 250, head.size() - 250, head_state.data());
+  filter_in_place(c, rest.data(), rest.size());
+  double peak = 0;
+  for (const auto& v : whole) peak = std::max(peak, std::abs(v));
+  for (std::size_t i = 0; i < x.size(); ++i) REQUIRE(std::abs(head[i] + rest[i] - whole[i]) <= 1e-12 * peak);
+}
+
+TEST_CASE("filtering signals together gives each the values it has alone", "[filters]") {
+  const double fs = 4000;
+  FilterCascade c = chest_wall_filter(15, fs);
+  c.append(sensor_response(Sensor::electronic, fs));
+  // Three signals of different lengths (a pair in lockstep, then the one left over).
+  const std::size_t n[3] = {500, 480, 530};
+  std::vector<std::vector<std::complex<double>>> together(3), alone(3), state_together(3), state_alone(3);
+  for (std::size_t s = 0; s < 3; ++s) {
+    for (std::size_t i = 0; i < n[s]; ++i)
+      together[s].push_back(std::polar(std::exp(-0.005 * i), 2.0 * std::numbers::pi * (50.0 + 20.0 * s) * i / fs));
+    alone[s] = together[s];
+    state_together[s].assign(2 * c.sections.size(), 0.3 * s);  // a non-rest start
+    state_alone[s] = state_together[s];
+    filter_continue(c, alone[s].data(), n[s], state_alone[s].data());
+  }
+  std::complex<double>* data[3] = {together[0].data(), together[1].data(), together[2].data()};
+  std::complex<double>* state[3] = {state_together[0].data(), state_together[1].data(), state_together[2].data()};
+  filter_continue_together(c, data, n, state, 3);
+  for (std::size_t s = 0; s < 3; ++s) {
+    for (std::size_t i = 0; i < n[s]; ++i) REQUIRE(together[s][i] == alone[s][i]);
+    for (std::size_t k = 0; k < state_alone[s].size(); ++k) REQUIRE(state_together[s][k] == state_alone[s][k]);
+  }
+}

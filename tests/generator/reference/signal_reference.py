@@ -64,6 +64,10 @@ def main(argv):
             f = np.fft.rfftfreq(len(x), 1 / fs)
             band = (f >= lo) & (f <= hi)
             print(f"{spec[band].sum() / spec.sum():.12g}")
+    elif cmd == "resample_poly":
+        x = np.fromfile(argv[2], dtype=np.float64)
+        for v in signal.resample_poly(x, 1, int(argv[3])):
+            print(f"{v:.17g}")
     else:
         raise SystemExit(f"unknown command {cmd}")
 
