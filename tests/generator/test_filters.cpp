@@ -33,12 +33,6 @@ std::vector<double> measured_response_db(const FilterCascade& c, double fs, cons
   return out;
 }
 
-std::string join(const std::vector<double>& v) {
-  std::string s;
-  for (double x : v) s += " " + std::to_string(x);
-  return s;
-}
-
 double db(std::complex<double> h) { return 20.0 * std::log10(std::abs(h)); }
 
 // scipy.signal.sosfreqz of the same coefficients against the implemented responses (one
