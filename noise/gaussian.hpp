@@ -11,7 +11,14 @@
 
 namespace stethogen::noise {
 
+// fastest: the bulk bits by AVX2 where the processor has it. Both paths give bit-identical
+// values; portable exists so that tests can show it.
+enum class GaussianPath { fastest, portable };
+
 // Fills out[0, n) with independent N(0, 1) values; consumes exactly one next_u64() of rng.
-void fill_gaussian(RandomStream& rng, float* out, std::size_t n);
+void fill_gaussian(RandomStream& rng, float* out, std::size_t n, GaussianPath path = GaussianPath::fastest);
+
+// Whether GaussianPath::fastest runs the AVX2 kernel on this machine.
+bool gaussian_uses_avx2();
 
 }  // namespace stethogen::noise

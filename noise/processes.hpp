@@ -41,8 +41,9 @@ struct Burst {
   std::size_t onset = 0, offset = 0;
 };
 
-// One process's signal at every site. Stationary processes have unit mean power over all
-// sites and samples; each burst of an event process has unit power over its own interval.
+// One process's signal at every site. Each burst of an event process has unit power over its
+// own interval; stationary processes come at whatever level they are made, and the mixer
+// scales each to unit mean power over all sites and samples.
 struct Contribution {
   std::string label;  // stationary name ("ambient_pink") or artifact kind ("friction")
   bool stationary = true;
@@ -50,17 +51,14 @@ struct Contribution {
   std::vector<Burst> bursts;
 };
 
-// Scales x so its mean power over all sites and samples is 1 (no-op when all zero).
-void normalize_to_unit_power(SiteArray<float>& x);
-
 // A field heard at every site: row s = g_s * envelope * (sqrt(c) * shared + sqrt(1 - c) * local_s)
-// with c the coherence (shared power fraction) and g_s a per-site level within +-spread_db. The
-// local parts are one further synthesis, circularly shifted by (1 + Site) / 5 of the record:
-// for noise whose correlation time is far below a second, practically independent per site
-// at the cost of one synthesis instead of one per site. envelope may be null (flat).
+// with c the coherence (shared power fraction), shared and local of unit power, and g_s a
+// per-site level within +-spread_db. The local parts are one further synthesis, circularly
+// shifted by (1 + Site) / 5 of the record: for noise whose correlation time is far below a
+// second, practically independent per site at the cost of one synthesis instead of one per
+// site. response: amplitude_response of length ctx.n_samples; envelope may be null (flat).
 void spread_over_sites(const ProcessContext& ctx, ProcessKind kind, double coherence, double spread_db,
-                       const std::function<double(double)>& amplitude, const float* envelope,
-                       SiteArray<float>& out);
+                       const std::vector<float>& response, const float* envelope, SiteArray<float>& out);
 
 Contribution sensor_noise(const ProcessContext& ctx);
 Contribution ambient_noise(const ProcessContext& ctx, const AmbientNoise& cfg);
