@@ -36,7 +36,7 @@ double breath_amplitude(const BreathNoise& cfg, double f) {
 
 Contribution breath_noise(const ProcessContext& ctx, const BreathNoise& cfg,
                           const std::function<double(double time_s)>& resp_phase, double inspiration_fraction) {
-  Contribution c{"breath", true, SiteArray<float>(ctx.sites.size(), ctx.n_samples), {}};
+  Contribution c{"breath", true, ctx.array_to_overwrite(), {}};
   const std::size_t n = ctx.n_samples;
   auto amplitude = [&cfg](double f) { return breath_amplitude(cfg, f); };
 

@@ -27,6 +27,7 @@ struct PendingEvent {
 
 // The additive processes summed at their relative levels, each freed once added.
 struct Background {
+  const ProcessContext& ctx;
   SiteArray<float> total;  // empty until the first process is added
   std::vector<PendingEvent> events;
   std::vector<std::string> stationary;
@@ -56,13 +57,15 @@ struct Background {
       for (float& v : c.samples.data) v *= gain;
       sensor = std::move(c.samples);
       has_sensor = true;
+    } else {
+      ctx.spare.push_back(std::move(c.samples));
     }
   }
 };
 
 Background generate_additive(const ProcessContext& ctx, const NoiseProfile& p, const NoiseInputs& in,
                              const std::function<double(double)>& resp_phase) {
-  Background bg{{}, {}, {}, p.dropout.enabled, {}, false};
+  Background bg{ctx, {}, {}, {}, p.dropout.enabled, {}, false};
   if (p.sensor_white.enabled) bg.add(sensor_noise(ctx), p.sensor_white.level_db);
   if (p.ambient.enabled) bg.add(ambient_noise(ctx, p.ambient), p.ambient.level_db);
   if (p.breath.enabled) bg.add(breath_noise(ctx, p.breath, resp_phase, in.inspiration_fraction), p.breath.level_db);

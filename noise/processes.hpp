@@ -29,6 +29,13 @@ struct ProcessContext {
   std::size_t n_samples = 0;
   std::vector<Site> sites;
 
+  // Arrays of the record's shape that the mixer has added and handed back, for the next
+  // process to write into instead of allocating and zero-filling its own.
+  mutable std::vector<SiteArray<float>> spare;
+
+  // A sites x samples array for a process that writes every sample (contents unspecified).
+  SiteArray<float> array_to_overwrite() const;
+
   RandomStream shared_stream(ProcessKind kind, std::uint32_t kind_offset = 0) const;
   RandomStream site_stream(ProcessKind kind, std::size_t site_index, std::uint32_t kind_offset = 0) const;
   RandomStream local_stream(ProcessKind kind) const;

@@ -13,6 +13,13 @@
 
 namespace stethogen::noise {
 
+SiteArray<float> ProcessContext::array_to_overwrite() const {
+  if (spare.empty()) return SiteArray<float>(sites.size(), n_samples);
+  SiteArray<float> a = std::move(spare.back());
+  spare.pop_back();
+  return a;
+}
+
 RandomStream ProcessContext::shared_stream(ProcessKind kind, std::uint32_t kind_offset) const {
   std::uint32_t k = static_cast<std::uint32_t>(kind) + kind_offset;
   return RandomStream(seed, record_index, stream_id(Stream::noise_base, 16 * k));
@@ -76,8 +83,6 @@ constexpr double kSiteSpreadDb = 1.0;
 
 double site_gain(RandomStream& rng) { return std::pow(10.0, rng.uniform(-kSiteSpreadDb, kSiteSpreadDb) / 20.0); }
 
-SiteArray<float> make_array(const ProcessContext& ctx) { return SiteArray<float>(ctx.sites.size(), ctx.n_samples); }
-
 // exp(i (phase0 + k step)) for k = 0, 1, 2, ...: one complex rotation per call, recomputed
 // from cos and sin every kResync calls so that rounding does not accumulate.
 class Phasor {
@@ -107,7 +112,7 @@ class Phasor {
 }  // namespace
 
 Contribution sensor_noise(const ProcessContext& ctx) {
-  Contribution c{"sensor_white", true, make_array(ctx), {}};
+  Contribution c{"sensor_white", true, ctx.array_to_overwrite(), {}};
   for (std::size_t s = 0; s < ctx.sites.size(); ++s) {
     RandomStream rng = ctx.site_stream(ProcessKind::sensor_white, s);
     fill_gaussian(rng, c.samples.row(s), ctx.n_samples);
@@ -116,7 +121,7 @@ Contribution sensor_noise(const ProcessContext& ctx) {
 }
 
 Contribution ambient_noise(const ProcessContext& ctx, const AmbientNoise& cfg) {
-  Contribution c{"ambient_" + std::string(name(cfg.color)), true, make_array(ctx), {}};
+  Contribution c{"ambient_" + std::string(name(cfg.color)), true, ctx.array_to_overwrite(), {}};
   const double corner = cfg.low_corner_hz;
   std::function<double(double)> amplitude;
   std::string shape = "ambient " + std::string(name(cfg.color));
@@ -146,7 +151,7 @@ Contribution ambient_noise(const ProcessContext& ctx, const AmbientNoise& cfg) {
 }
 
 Contribution hum_noise(const ProcessContext& ctx, const HumNoise& cfg) {
-  Contribution c{"hum_" + std::to_string(static_cast<int>(cfg.frequency_hz)) + "hz", true, make_array(ctx), {}};
+  Contribution c{"hum_" + std::to_string(static_cast<int>(cfg.frequency_hz)) + "hz", true, ctx.array_to_overwrite(), {}};
   const std::size_t n = ctx.n_samples, n_sites = ctx.sites.size();
   const int n_harmonics = cfg.harmonics + 1;
   RandomStream rng = ctx.shared_stream(ProcessKind::hum);
@@ -213,7 +218,7 @@ Contribution hum_noise(const ProcessContext& ctx, const HumNoise& cfg) {
 }
 
 Contribution recording_noise(const ProcessContext& ctx, const RecordingNoise& cfg, std::size_t index) {
-  Contribution c{"recording:" + cfg.file, true, make_array(ctx), {}};
+  Contribution c{"recording:" + cfg.file, true, ctx.array_to_overwrite(), {}};
   auto audio = resampled(*cfg.audio, static_cast<int>(ctx.sample_rate_hz));
   const std::size_t len = audio->size();
   const auto offset_kind = static_cast<std::uint32_t>(index);
