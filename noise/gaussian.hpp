@@ -1,5 +1,5 @@
 // Fast standard normal deviates for noise: the ziggurat method (Marsaglia & Tsang 2000, "The
-// ziggurat method for generating random variables", J Stat Softw 5(8)), 128 layers. Each call
+// ziggurat method for generating random variables", J Stat Softw 5(8)), 256 layers. Each call
 // takes one 64-bit seed from the record's counter-based RandomStream and draws the bulk bits
 // from SplitMix64 (Steele, Lea & Flood 2014, OOPSLA). Layer index and value come from separate
 // bits of each 32-bit word, avoiding the index/value correlation Doornik (2005) found in the original.

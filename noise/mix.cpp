@@ -38,7 +38,7 @@ struct Background {
   void add(Contribution c, double level_db) {
     double a = db_to_amplitude(level_db);
     if (c.stationary) {  // brought to unit mean power over all sites and samples
-      const double p = rough_mean_power(c.samples.data.data(), c.samples.data.size());
+      const double p = c.mean_power >= 0 ? c.mean_power : rough_mean_power(c.samples.data.data(), c.samples.data.size());
       a = p > 0 ? a / std::sqrt(p) : 0.0;
       stationary.push_back(c.label);
     }
@@ -109,7 +109,7 @@ NoiseOutput add_noise(const NoiseInputs& in) {
   }
 
   ProcessContext ctx{subject.dataset_seed, subject.record_index, static_cast<double>(in.sample_rate_hz),
-                     clean.n_samples, subject.sites};
+                     clean.n_samples, subject.sites, {}};
   const std::size_t n = clean.n_samples;
   std::vector<double> site_clean_power(clean.n_sites);
   double clean_power = 0;  // all sites: the rows are of equal length

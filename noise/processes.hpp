@@ -56,6 +56,7 @@ struct Contribution {
   bool stationary = true;
   SiteArray<float> samples;
   std::vector<Burst> bursts;
+  double mean_power = -1;  // of samples, to about 1e-6, where the process measured it (else < 0)
 };
 
 // A field heard at every site: row s = g_s * envelope * (sqrt(c) * shared + sqrt(1 - c) * local_s)
@@ -64,7 +65,8 @@ struct Contribution {
 // shifted by (1 + Site) / 5 of the record: for noise whose correlation time is far below a
 // second, practically independent per site at the cost of one synthesis instead of one per
 // site. response: amplitude_response of length ctx.n_samples; envelope may be null (flat).
-void spread_over_sites(const ProcessContext& ctx, ProcessKind kind, double coherence, double spread_db,
+// Returns the mean power of out (to about 1e-6).
+double spread_over_sites(const ProcessContext& ctx, ProcessKind kind, double coherence, double spread_db,
                        const std::vector<float>& response, const float* envelope, SiteArray<float>& out);
 
 Contribution sensor_noise(const ProcessContext& ctx);

@@ -49,7 +49,7 @@ void mix_row(float* row, const float* shared, float w_shared, const float* local
 
 }  // namespace
 
-void spread_over_sites(const ProcessContext& ctx, ProcessKind kind, double coherence, double spread_db,
+double spread_over_sites(const ProcessContext& ctx, ProcessKind kind, double coherence, double spread_db,
                        const std::vector<float>& response, const float* envelope, SiteArray<float>& out) {
   const std::size_t n = ctx.n_samples;
   RandomStream shared_rng = ctx.shared_stream(kind), local_rng = ctx.local_stream(kind);
@@ -63,6 +63,7 @@ void spread_over_sites(const ProcessContext& ctx, ProcessKind kind, double coher
   const float w_shared = weight(shared, coherence), w_local = weight(local, 1.0 - coherence);
   const float* shared_x = shared.samples ? shared.samples.get() : local.samples.get();
   const float* local_x = local.samples ? local.samples.get() : shared.samples.get();
+  double power = 0;
   for (std::size_t s = 0; s < ctx.sites.size(); ++s) {
     RandomStream rng = ctx.site_stream(kind, s);
     const float g = static_cast<float>(std::pow(10.0, rng.uniform(-spread_db, spread_db) / 20.0));
@@ -72,7 +73,9 @@ void spread_over_sites(const ProcessContext& ctx, ProcessKind kind, double coher
     const std::size_t first = n - lag;
     mix_row(row, shared_x, w_shared, local_x + lag, w_local, g, envelope, first);
     mix_row(row + first, shared_x + first, w_shared, local_x, w_local, g, envelope ? envelope + first : nullptr, lag);
+    power += rough_mean_power(row, n) / static_cast<double>(ctx.sites.size());  // while the row is in cache
   }
+  return power;
 }
 
 namespace {
@@ -146,7 +149,8 @@ Contribution ambient_noise(const ProcessContext& ctx, const AmbientNoise& cfg) {
   }
   auto response = cached_response(shape, ctx.n_samples, ctx.sample_rate_hz, amplitude);
   // One room: a shared component heard at every site plus a smaller local part per site.
-  spread_over_sites(ctx, ProcessKind::ambient, cfg.site_coherence, kSiteSpreadDb, *response, nullptr, c.samples);
+  c.mean_power =
+      spread_over_sites(ctx, ProcessKind::ambient, cfg.site_coherence, kSiteSpreadDb, *response, nullptr, c.samples);
   return c;
 }
 
@@ -206,6 +210,7 @@ Contribution hum_noise(const ProcessContext& ctx, const HumNoise& cfg) {
       envelope[i0 + k] = static_cast<float>(1.0 + cfg.drift * (drift_lo + (drift_hi - drift_lo) * static_cast<double>(k) / kDriftStep));
     drift_lo = drift_hi;
   }
+  c.mean_power = 0;
   for (std::size_t s = 0; s < n_sites; ++s) {
     float* row = c.samples.row(s);
     const float* w = wave[s].data();
@@ -213,6 +218,7 @@ Contribution hum_noise(const ProcessContext& ctx, const HumNoise& cfg) {
       const std::size_t count = std::min(period, n - i0);
       for (std::size_t k = 0; k < count; ++k) row[i0 + k] = envelope[i0 + k] * w[k];
     }
+    c.mean_power += rough_mean_power(row, n) / static_cast<double>(n_sites);  // while the row is in cache
   }
   return c;
 }
