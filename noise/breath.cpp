@@ -62,8 +62,8 @@ Contribution breath_noise(const ProcessContext& ctx, const BreathNoise& cfg,
 
   auto response = cached_response(fmt::format("breath {} {} {}", cfg.corner_hz, cfg.slope_db_per_octave, cfg.upper_hz),
                                   n, ctx.sample_rate_hz, amplitude);
-  c.mean_power = spread_over_sites(ctx, ProcessKind::breath, cfg.site_coherence, kBreathSiteSpreadDb, *response, envelope.data(),
-                    c.samples);
+  c.mean_power = spread_over_sites(ctx, ProcessKind::breath, cfg.site_coherence, kBreathSiteSpreadDb, *response,
+                                   envelope.data(), c.samples);
   return c;
 }
 

@@ -38,7 +38,8 @@ struct Background {
   void add(Contribution c, double level_db) {
     double a = db_to_amplitude(level_db);
     if (c.stationary) {  // brought to unit mean power over all sites and samples
-      const double p = c.mean_power >= 0 ? c.mean_power : rough_mean_power(c.samples.data.data(), c.samples.data.size());
+      const double p =
+          c.mean_power >= 0 ? c.mean_power : rough_mean_power(c.samples.data.data(), c.samples.data.size());
       a = p > 0 ? a / std::sqrt(p) : 0.0;
       stationary.push_back(c.label);
     }

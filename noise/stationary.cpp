@@ -193,7 +193,8 @@ Contribution hum_noise(const ProcessContext& ctx, const HumNoise& cfg) {
   // rotation of three phasors) and interpolated linearly.
   constexpr std::size_t kDriftStep = 32;
   std::vector<Phasor> drift;
-  for (int j = 0; j < 3; ++j) drift.emplace_back(2 * M_PI * drift_f[j] * kDriftStep / ctx.sample_rate_hz, drift_phase[j]);
+  for (int j = 0; j < 3; ++j)
+    drift.emplace_back(2 * M_PI * drift_f[j] * kDriftStep / ctx.sample_rate_hz, drift_phase[j]);
   auto next_drift = [&] {
     double d = 0, re, im;
     for (Phasor& p : drift) {
@@ -206,8 +207,10 @@ Contribution hum_noise(const ProcessContext& ctx, const HumNoise& cfg) {
   double drift_lo = next_drift();
   for (std::size_t i0 = 0; i0 < n; i0 += kDriftStep) {
     const double drift_hi = next_drift();
-    for (std::size_t k = 0; k < kDriftStep && i0 + k < n; ++k)
-      envelope[i0 + k] = static_cast<float>(1.0 + cfg.drift * (drift_lo + (drift_hi - drift_lo) * static_cast<double>(k) / kDriftStep));
+    for (std::size_t k = 0; k < kDriftStep && i0 + k < n; ++k) {
+      const double d = drift_lo + (drift_hi - drift_lo) * static_cast<double>(k) / kDriftStep;
+      envelope[i0 + k] = static_cast<float>(1.0 + cfg.drift * d);
+    }
     drift_lo = drift_hi;
   }
   c.mean_power = 0;
