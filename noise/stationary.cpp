@@ -1,7 +1,6 @@
 // Stationary processes: sensor self-noise, ambient room noise, powerline hum, recordings.
 #include <algorithm>
 #include <cmath>
-#include <complex>
 #include <cstdint>
 #include <numeric>
 
@@ -50,7 +49,7 @@ void mix_row(float* row, const float* shared, float w_shared, const float* local
 }  // namespace
 
 double spread_over_sites(const ProcessContext& ctx, ProcessKind kind, double coherence, double spread_db,
-                       const std::vector<float>& response, const float* envelope, SiteArray<float>& out) {
+                         const std::vector<float>& response, const float* envelope, SiteArray<float>& out) {
   const std::size_t n = ctx.n_samples;
   RandomStream shared_rng = ctx.shared_stream(kind), local_rng = ctx.local_stream(kind);
   ShapedNoise shared, local;
@@ -86,23 +85,23 @@ constexpr double kSiteSpreadDb = 1.0;
 
 double site_gain(RandomStream& rng) { return std::pow(10.0, rng.uniform(-kSiteSpreadDb, kSiteSpreadDb) / 20.0); }
 
-// exp(i (phase0 + k step)) for k = 0, 1, 2, ...: one complex rotation per call, recomputed
-// from cos and sin every kResync calls so that rounding does not accumulate.
-class Phasor {
+// sin(phase0 + k step) for k = 0, 1, 2, ...: the phasor exp(i (phase0 + k step)) rotated once
+// per call, recomputed from cos and sin every kResync calls so that rounding does not accumulate.
+class SineSteps {
  public:
-  Phasor(double step_rad, double phase0_rad)
+  SineSteps(double step_rad, double phase0_rad)
       : step_(step_rad), phase0_(phase0_rad), rot_re_(std::cos(step_rad)), rot_im_(std::sin(step_rad)) {}
-  void next(double& re, double& im) {
+  double next() {
     if (k_ % kResync == 0) {
       double phase = std::fmod(phase0_ + step_ * static_cast<double>(k_), 2 * M_PI);
       re_ = std::cos(phase);
       im_ = std::sin(phase);
     }
-    re = re_;
-    im = im_;
+    const double re = re_, im = im_;
     re_ = re * rot_re_ - im * rot_im_;
     im_ = re * rot_im_ + im * rot_re_;
     ++k_;
+    return im;
   }
 
  private:
@@ -155,7 +154,8 @@ Contribution ambient_noise(const ProcessContext& ctx, const AmbientNoise& cfg) {
 }
 
 Contribution hum_noise(const ProcessContext& ctx, const HumNoise& cfg) {
-  Contribution c{"hum_" + std::to_string(static_cast<int>(cfg.frequency_hz)) + "hz", true, ctx.array_to_overwrite(), {}};
+  Contribution c{"hum_" + std::to_string(static_cast<int>(cfg.frequency_hz)) + "hz", true, ctx.array_to_overwrite(),
+                 {}};
   const std::size_t n = ctx.n_samples, n_sites = ctx.sites.size();
   const int n_harmonics = cfg.harmonics + 1;
   RandomStream rng = ctx.shared_stream(ProcessKind::hum);
@@ -189,18 +189,15 @@ Contribution hum_noise(const ProcessContext& ctx, const HumNoise& cfg) {
     }
   }
 
-  // The drift is far slower than the sample rate: evaluated every kDriftStep samples (one
-  // rotation of three phasors) and interpolated linearly.
+  // The drift is far slower than the sample rate: evaluated every kDriftStep samples and
+  // interpolated linearly.
   constexpr std::size_t kDriftStep = 32;
-  std::vector<Phasor> drift;
+  std::vector<SineSteps> drift;
   for (int j = 0; j < 3; ++j)
     drift.emplace_back(2 * M_PI * drift_f[j] * kDriftStep / ctx.sample_rate_hz, drift_phase[j]);
   auto next_drift = [&] {
-    double d = 0, re, im;
-    for (Phasor& p : drift) {
-      p.next(re, im);
-      d += im;
-    }
+    double d = 0;
+    for (SineSteps& p : drift) d += p.next();
     return d / 3.0;
   };
   std::vector<float> envelope(n);
