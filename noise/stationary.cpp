@@ -115,9 +115,11 @@ class SineSteps {
 
 Contribution sensor_noise(const ProcessContext& ctx) {
   Contribution c{"sensor_white", true, ctx.array_to_overwrite(), {}};
+  c.mean_power = 0;
   for (std::size_t s = 0; s < ctx.sites.size(); ++s) {
     RandomStream rng = ctx.site_stream(ProcessKind::sensor_white, s);
     fill_gaussian(rng, c.samples.row(s), ctx.n_samples);
+    c.mean_power += rough_mean_power(c.samples.row(s), ctx.n_samples) / static_cast<double>(ctx.sites.size());
   }
   return c;
 }
