@@ -6,6 +6,8 @@
 #include <algorithm>
 #include <cmath>
 
+#include <fmt/format.h>
+
 #include "noise/processes.hpp"
 #include "noise/spectral.hpp"
 
@@ -18,8 +20,9 @@ constexpr double kBreathSiteSpreadDb = 3.0;
 // Extra power roll-off above the upper limit, so the band ends there rather than fading slowly.
 constexpr double kUpperRolloffDbPerOctave = -60.0;
 constexpr double kDbPerOctaveToExponent = 1.0 / (20.0 * 0.30102999566398120);  // amplitude exponent
-// The envelope is smooth over a breath (seconds): evaluate the phase every few samples.
-constexpr std::size_t kEnvelopeStep = 8;
+// The envelope is smooth over a breath (seconds): evaluate the phase every few samples (4 ms
+// at 4 kHz; linear interpolation of a sin^2 bump over a 0.3 s inspiration errs by < 0.05 %).
+constexpr std::size_t kEnvelopeStep = 16;
 
 double breath_amplitude(const BreathNoise& cfg, double f) {
   // Piecewise power law in log frequency: one logarithm and one exponential per bin.
@@ -33,7 +36,7 @@ double breath_amplitude(const BreathNoise& cfg, double f) {
 
 Contribution breath_noise(const ProcessContext& ctx, const BreathNoise& cfg,
                           const std::function<double(double time_s)>& resp_phase, double inspiration_fraction) {
-  Contribution c{"breath", true, SiteArray<float>(ctx.sites.size(), ctx.n_samples), {}};
+  Contribution c{"breath", true, ctx.array_to_overwrite(), {}};
   const std::size_t n = ctx.n_samples;
   auto amplitude = [&cfg](double f) { return breath_amplitude(cfg, f); };
 
@@ -47,16 +50,20 @@ Contribution breath_noise(const ProcessContext& ctx, const BreathNoise& cfg,
     double s = p < fi ? std::sin(M_PI * p / fi) : std::sin(M_PI * (p - fi) / (1 - fi));
     return (p < fi ? 1.0 : expiration_gain) * s * s;
   };
+  // Each point once: the end of one step is the start of the next.
   std::vector<float> envelope(n);
+  double e0 = envelope_at(0);
   for (std::size_t i0 = 0; i0 < n; i0 += kEnvelopeStep) {
-    double e0 = envelope_at(i0), e1 = envelope_at(std::min(i0 + kEnvelopeStep, n));
+    const double e1 = envelope_at(std::min(i0 + kEnvelopeStep, n));
     for (std::size_t k = 0; k < kEnvelopeStep && i0 + k < n; ++k)
       envelope[i0 + k] = static_cast<float>(e0 + (e1 - e0) * static_cast<double>(k) / kEnvelopeStep);
+    e0 = e1;
   }
 
-  spread_over_sites(ctx, ProcessKind::breath, cfg.site_coherence, kBreathSiteSpreadDb, amplitude, envelope.data(),
-                    c.samples);
-  normalize_to_unit_power(c.samples);
+  auto response = cached_response(fmt::format("breath {} {} {}", cfg.corner_hz, cfg.slope_db_per_octave, cfg.upper_hz),
+                                  n, ctx.sample_rate_hz, amplitude);
+  c.mean_power = spread_over_sites(ctx, ProcessKind::breath, cfg.site_coherence, kBreathSiteSpreadDb, *response,
+                                   envelope.data(), c.samples);
   return c;
 }
 

@@ -27,29 +27,46 @@ struct PendingEvent {
 
 // The additive processes summed at their relative levels, each freed once added.
 struct Background {
-  SiteArray<float> total;
+  const ProcessContext& ctx;
+  SiteArray<float> total;  // empty until the first process is added
   std::vector<PendingEvent> events;
   std::vector<std::string> stationary;
-  SiteArray<float> sensor;  // the sensor self-noise at its relative level (for dropouts)
+  bool keep_sensor = false;  // dropouts leave the sensor self-noise: keep it at its level
+  SiteArray<float> sensor;
   bool has_sensor = false;
 
   void add(Contribution c, double level_db) {
-    const float a = static_cast<float>(db_to_amplitude(level_db));
-    for (std::size_t i = 0; i < c.samples.data.size(); ++i) total.data[i] += a * c.samples.data[i];
-    if (c.stationary) stationary.push_back(c.label);
+    double a = db_to_amplitude(level_db);
+    if (c.stationary) {  // brought to unit mean power over all sites and samples
+      const double p =
+          c.mean_power >= 0 ? c.mean_power : rough_mean_power(c.samples.data.data(), c.samples.data.size());
+      a = p > 0 ? a / std::sqrt(p) : 0.0;
+      stationary.push_back(c.label);
+    }
+    const auto gain = static_cast<float>(a);
     for (const Burst& b : c.bursts)
       events.push_back({c.label, b, a * a * mean_power(c.samples.row(b.site) + b.onset, b.offset - b.onset)});
-    if (c.label == "sensor_white") {
-      for (float& v : c.samples.data) v *= a;
+    const bool keep = c.label == "sensor_white" && keep_sensor;
+    if (total.data.empty() && !keep) {  // the first process: its own array becomes the sum
+      for (float& v : c.samples.data) v *= gain;
+      total = std::move(c.samples);
+      return;
+    }
+    if (total.data.empty()) total = SiteArray<float>(c.samples.n_sites, c.samples.n_samples);
+    for (std::size_t i = 0; i < c.samples.data.size(); ++i) total.data[i] += gain * c.samples.data[i];
+    if (keep) {
+      for (float& v : c.samples.data) v *= gain;
       sensor = std::move(c.samples);
       has_sensor = true;
+    } else {
+      ctx.spare.push_back(std::move(c.samples));
     }
   }
 };
 
 Background generate_additive(const ProcessContext& ctx, const NoiseProfile& p, const NoiseInputs& in,
                              const std::function<double(double)>& resp_phase) {
-  Background bg{SiteArray<float>(ctx.sites.size(), ctx.n_samples), {}, {}, {}, false};
+  Background bg{ctx, {}, {}, {}, p.dropout.enabled, {}, false};
   if (p.sensor_white.enabled) bg.add(sensor_noise(ctx), p.sensor_white.level_db);
   if (p.ambient.enabled) bg.add(ambient_noise(ctx, p.ambient), p.ambient.level_db);
   if (p.breath.enabled) bg.add(breath_noise(ctx, p.breath, resp_phase, in.inspiration_fraction), p.breath.level_db);
@@ -58,6 +75,7 @@ Background generate_additive(const ProcessContext& ctx, const NoiseProfile& p, c
   if (p.hum.enabled) bg.add(hum_noise(ctx, p.hum), p.hum.level_db);
   for (std::size_t i = 0; i < p.recordings.size(); ++i)
     bg.add(recording_noise(ctx, p.recordings[i], i), p.recordings[i].level_db);
+  if (bg.total.data.empty()) bg.total = SiteArray<float>(ctx.sites.size(), ctx.n_samples);
   return bg;
 }
 
@@ -74,24 +92,32 @@ NoiseOutput add_noise(const NoiseInputs& in) {
   const SubjectSpec& subject = *in.subject;
   const SiteArray<float>& clean = *in.clean;
   NoiseOutput out;
-  out.noisy = clean;
   out.snr_target_db = std::numeric_limits<double>::quiet_NaN();
   out.snr_achieved_db = std::numeric_limits<double>::quiet_NaN();
-  if (!subject.noise_profile || !subject.params.snr_db) return out;
+  if (!subject.noise_profile || !subject.params.snr_db) {
+    out.noisy = clean;
+    return out;
+  }
   if (clean.n_sites != subject.sites.size())
     throw std::invalid_argument("add_noise: clean signal rows do not match the subject's sites");
   const NoiseProfile& profile = *subject.noise_profile;
   const double snr_db = *subject.params.snr_db;
   out.snr_target_db = snr_db;
   validate_for_rate(profile, in.sample_rate_hz, "noise." + subject.noise_profile_name);
-  if (clean.n_samples == 0 || clean.n_sites == 0) return out;
+  if (clean.n_samples == 0 || clean.n_sites == 0) {
+    out.noisy = clean;
+    return out;
+  }
 
   ProcessContext ctx{subject.dataset_seed, subject.record_index, static_cast<double>(in.sample_rate_hz),
-                     clean.n_samples, subject.sites};
+                     clean.n_samples, subject.sites, {}};
   const std::size_t n = clean.n_samples;
   std::vector<double> site_clean_power(clean.n_sites);
-  for (std::size_t s = 0; s < clean.n_sites; ++s) site_clean_power[s] = mean_power(clean.row(s), n);
-  const double clean_power = mean_power(clean.data.data(), clean.data.size());
+  double clean_power = 0;  // all sites: the rows are of equal length
+  for (std::size_t s = 0; s < clean.n_sites; ++s) {
+    site_clean_power[s] = mean_power(clean.row(s), n);
+    clean_power += site_clean_power[s] / static_cast<double>(clean.n_sites);
+  }
   if (!(clean_power > 0) || !std::isfinite(clean_power))
     throw RecordFailure(subject.record_id, "the clean signal is silent or non-finite: the SNR is undefined");
   auto site_reference = [&](std::int32_t site) {
@@ -106,16 +132,28 @@ NoiseOutput add_noise(const NoiseInputs& in) {
 
   // The additive background, summed at relative levels, then one scale for the SNR.
   Background bg = generate_additive(ctx, profile, in, resp_phase);
-  const SiteArray<float>& total = bg.total;
-  const double raw_power = mean_power(total.data.data(), total.data.size());
+  const double raw_power = mean_power(bg.total.data.data(), bg.total.data.size());
   const double scale = raw_power > 0 ? std::sqrt(clean_power / (raw_power * std::pow(10.0, snr_db / 10.0))) : 0.0;
+  // The noisy signal in place of the sum, and the achieved SNR from its float samples
+  // (independent partial sums, so that the loop vectorises).
+  out.noisy = std::move(bg.total);
+  float* noisy = out.noisy.data.data();
+  const float* x = clean.data.data();
+  const std::size_t size = out.noisy.data.size();
+  auto mix_sample = [&](std::size_t i) {
+    noisy[i] = x[i] + static_cast<float>(scale * noisy[i]);
+    const double e = static_cast<double>(noisy[i]) - x[i];
+    return e * e;
+  };
+  constexpr std::size_t kLanes = 8;
+  double lane[kLanes] = {};
+  std::size_t i = 0;
+  for (; i + kLanes <= size; i += kLanes)
+    for (std::size_t k = 0; k < kLanes; ++k) lane[k] += mix_sample(i + k);
   double noise_energy = 0;
-  for (std::size_t i = 0; i < total.data.size(); ++i) {
-    out.noisy.data[i] = clean.data[i] + static_cast<float>(scale * total.data[i]);
-    double e = static_cast<double>(out.noisy.data[i]) - clean.data[i];
-    noise_energy += e * e;
-  }
-  out.snr_achieved_db = noise_energy > 0 ? 10.0 * std::log10(clean_power * total.data.size() / noise_energy)
+  for (; i < size; ++i) noise_energy += mix_sample(i);
+  for (double v : lane) noise_energy += v;
+  out.snr_achieved_db = noise_energy > 0 ? 10.0 * std::log10(clean_power * static_cast<double>(size) / noise_energy)
                                          : std::numeric_limits<double>::infinity();
   out.stationary = bg.stationary;
   for (const PendingEvent& e : bg.events)

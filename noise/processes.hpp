@@ -29,6 +29,13 @@ struct ProcessContext {
   std::size_t n_samples = 0;
   std::vector<Site> sites;
 
+  // Arrays of the record's shape that the mixer has added and handed back, for the next
+  // process to write into instead of allocating and zero-filling its own.
+  mutable std::vector<SiteArray<float>> spare;
+
+  // A sites x samples array for a process that writes every sample (contents unspecified).
+  SiteArray<float> array_to_overwrite() const;
+
   RandomStream shared_stream(ProcessKind kind, std::uint32_t kind_offset = 0) const;
   RandomStream site_stream(ProcessKind kind, std::size_t site_index, std::uint32_t kind_offset = 0) const;
   RandomStream local_stream(ProcessKind kind) const;
@@ -41,26 +48,26 @@ struct Burst {
   std::size_t onset = 0, offset = 0;
 };
 
-// One process's signal at every site. Stationary processes have unit mean power over all
-// sites and samples; each burst of an event process has unit power over its own interval.
+// One process's signal at every site. Each burst of an event process has unit power over its
+// own interval; stationary processes come at whatever level they are made, and the mixer
+// scales each to unit mean power over all sites and samples.
 struct Contribution {
   std::string label;  // stationary name ("ambient_pink") or artifact kind ("friction")
   bool stationary = true;
   SiteArray<float> samples;
   std::vector<Burst> bursts;
+  double mean_power = -1;  // of samples, to about 1e-6, where the process measured it (else < 0)
 };
 
-// Scales x so its mean power over all sites and samples is 1 (no-op when all zero).
-void normalize_to_unit_power(SiteArray<float>& x);
-
 // A field heard at every site: row s = g_s * envelope * (sqrt(c) * shared + sqrt(1 - c) * local_s)
-// with c the coherence (shared power fraction) and g_s a per-site level within +-spread_db. The
-// local parts are one further synthesis, circularly shifted by (1 + Site) / 5 of the record:
-// for noise whose correlation time is far below a second, practically independent per site
-// at the cost of one synthesis instead of one per site. envelope may be null (flat).
-void spread_over_sites(const ProcessContext& ctx, ProcessKind kind, double coherence, double spread_db,
-                       const std::function<double(double)>& amplitude, const float* envelope,
-                       SiteArray<float>& out);
+// with c the coherence (shared power fraction), shared and local of unit power, and g_s a
+// per-site level within +-spread_db. The local parts are one further synthesis, circularly
+// shifted by (1 + Site) / 5 of the record: for noise whose correlation time is far below a
+// second, practically independent per site at the cost of one synthesis instead of one per
+// site. response: amplitude_response of length ctx.n_samples; envelope may be null (flat).
+// Returns the mean power of out (to about 1e-6).
+double spread_over_sites(const ProcessContext& ctx, ProcessKind kind, double coherence, double spread_db,
+                       const std::vector<float>& response, const float* envelope, SiteArray<float>& out);
 
 Contribution sensor_noise(const ProcessContext& ctx);
 Contribution ambient_noise(const ProcessContext& ctx, const AmbientNoise& cfg);

@@ -1,8 +1,8 @@
 #include "noise/spectral.hpp"
 
+#include <algorithm>
 #include <cmath>
 #include <map>
-#include <memory>
 #include <mutex>
 
 #include <fftw3.h>
@@ -12,66 +12,93 @@ namespace stethogen::noise {
 namespace {
 
 // FFTW's planner is not thread-safe, executing a plan on new arrays is: plans are made once
-// per length under a lock and kept for the life of the process.
+// per length under a lock and kept for the life of the process. FFTW_ESTIMATE: measuring a
+// plan for a record length costs seconds and gains about 0.1 ms per transform.
 struct PlanCache {
   std::mutex mutex;
-  std::map<std::size_t, fftw_plan> plans;
+  std::map<std::size_t, fftwf_plan> plans;
   ~PlanCache() {
-    for (auto& [n, plan] : plans) fftw_destroy_plan(plan);
+    for (auto& [n, plan] : plans) fftwf_destroy_plan(plan);
   }
 };
 
-fftw_plan c2r_plan(std::size_t n) {
+fftwf_plan c2r_plan(std::size_t n) {
   static PlanCache cache;
   std::lock_guard lock(cache.mutex);
   auto& plans = cache.plans;
   auto it = plans.find(n);
   if (it != plans.end()) return it->second;
-  fftw_complex* in = fftw_alloc_complex(n / 2 + 1);
-  double* out = fftw_alloc_real(n);
-  fftw_plan plan = fftw_plan_dft_c2r_1d(static_cast<int>(n), in, out, FFTW_ESTIMATE | FFTW_DESTROY_INPUT);
-  fftw_free(in);
-  fftw_free(out);
+  fftwf_complex* in = fftwf_alloc_complex(n / 2 + 1);
+  float* out = fftwf_alloc_real(n);
+  fftwf_plan plan = fftwf_plan_dft_c2r_1d(static_cast<int>(n), in, out, FFTW_ESTIMATE | FFTW_DESTROY_INPUT);
+  fftwf_free(in);
+  fftwf_free(out);
   plans.emplace(n, plan);
   return plan;
 }
 
-struct FftwFree {
-  void operator()(void* p) const { fftw_free(p); }
+// Responses by (shape, n, rate). A dataset uses a handful; past kMaxResponses (records of
+// many lengths) the cache starts afresh rather than grow.
+constexpr std::size_t kMaxResponses = 32;
+struct ResponseCache {
+  std::mutex mutex;
+  std::map<std::string, std::shared_ptr<const std::vector<float>>> by_key;
 };
 
 }  // namespace
 
-std::vector<double> amplitude_response(std::size_t n, double sample_rate_hz,
-                                       const std::function<double(double frequency_hz)>& amplitude) {
-  std::vector<double> a(n / 2 + 1, 0.0);
+void FftwFree::operator()(void* p) const { fftwf_free(p); }
+
+std::vector<float> amplitude_response(std::size_t n, double sample_rate_hz,
+                                      const std::function<double(double frequency_hz)>& amplitude) {
+  std::vector<float> a(n / 2 + 1, 0.0f);
   const double bin_hz = sample_rate_hz / static_cast<double>(n);
-  for (std::size_t k = 1; k < a.size(); ++k) a[k] = amplitude(static_cast<double>(k) * bin_hz);
+  for (std::size_t k = 1; k < a.size(); ++k) a[k] = static_cast<float>(amplitude(static_cast<double>(k) * bin_hz));
   return a;
 }
 
-std::vector<float> shaped_gaussian(RandomStream& rng, const std::vector<double>& response, std::size_t n) {
-  std::vector<float> out(n, 0.0f);
-  if (n < 2) return out;
-  const std::size_t bins = n / 2 + 1;
-  std::unique_ptr<fftw_complex, FftwFree> spectrum(fftw_alloc_complex(bins));
-  std::unique_ptr<double, FftwFree> signal(fftw_alloc_real(n));
-  std::vector<float> draws(2 * bins);
-  fill_gaussian(rng, draws.data(), draws.size());
-  fftw_complex* s = spectrum.get();
-  for (std::size_t k = 0; k < bins; ++k) {
-    double a = k == 0 ? 0.0 : response[k];
-    s[k][0] = a * draws[2 * k];
-    s[k][1] = a * draws[2 * k + 1];
+std::shared_ptr<const std::vector<float>> cached_response(const std::string& shape, std::size_t n,
+                                                          double sample_rate_hz,
+                                                          const std::function<double(double frequency_hz)>& amplitude) {
+  static ResponseCache cache;
+  std::string key = shape + " n=" + std::to_string(n) + " rate=" + std::to_string(sample_rate_hz);
+  {
+    std::lock_guard lock(cache.mutex);
+    auto it = cache.by_key.find(key);
+    if (it != cache.by_key.end()) return it->second;
   }
-  if (n % 2 == 0) s[bins - 1][1] = 0;  // the Nyquist bin of an even length is real
-  fftw_execute_dft_c2r(c2r_plan(n), s, signal.get());  // fftw_malloc'd: the plan's alignment holds
-  double power = 0;
-  const double* x = signal.get();
-  for (std::size_t i = 0; i < n; ++i) power += x[i] * x[i];
-  power /= static_cast<double>(n);
-  const double gain = power > 0 ? 1.0 / std::sqrt(power) : 0.0;
-  for (std::size_t i = 0; i < n; ++i) out[i] = static_cast<float>(x[i] * gain);
+  // Computed outside the lock; two threads may both compute the same (identical) response.
+  auto response = std::make_shared<const std::vector<float>>(amplitude_response(n, sample_rate_hz, amplitude));
+  std::lock_guard lock(cache.mutex);
+  if (cache.by_key.size() >= kMaxResponses) cache.by_key.clear();
+  return cache.by_key.emplace(std::move(key), std::move(response)).first->second;
+}
+
+ShapedNoise shaped_gaussian(RandomStream& rng, const std::vector<float>& response, std::size_t n) {
+  ShapedNoise out;
+  out.samples.reset(fftwf_alloc_real(std::max<std::size_t>(n, 1)));
+  if (n < 2) {
+    out.samples.get()[0] = 0;
+    return out;
+  }
+  const std::size_t bins = n / 2 + 1;
+  std::unique_ptr<fftwf_complex, FftwFree> spectrum(fftwf_alloc_complex(bins));
+  // Real and imaginary parts of bin k are draws 2k and 2k + 1, drawn straight into the spectrum.
+  float* s = reinterpret_cast<float*>(spectrum.get());
+  fill_gaussian(rng, s, 2 * bins);
+  s[0] = s[1] = 0;                            // no DC
+  if (n % 2 == 0) s[2 * (bins - 1) + 1] = 0;  // the Nyquist bin of an even length is real
+  for (std::size_t k = 1; k < bins; ++k) {
+    s[2 * k] *= response[k];
+    s[2 * k + 1] *= response[k];
+  }
+  // Parseval for the unnormalised inverse real transform: sum x^2 = (2 sum_{0<k<n/2} |X_k|^2
+  // + |X_n/2|^2) / n, the Nyquist bin of an even length counted once. To about 1e-6: the level
+  // is set again from the final sum, where the SNR is computed exactly.
+  double half_energy = rough_mean_power(s, 2 * bins) * static_cast<double>(2 * bins);
+  if (n % 2 == 0) half_energy -= 0.5 * static_cast<double>(s[2 * (bins - 1)]) * s[2 * (bins - 1)];
+  out.mean_power = 2 * half_energy / (static_cast<double>(n) * static_cast<double>(n));
+  fftwf_execute_dft_c2r(c2r_plan(n), spectrum.get(), out.samples.get());  // fftwf_malloc'd: the plan's alignment holds
   return out;
 }
 
@@ -86,6 +113,21 @@ double mean_power(const float* x, std::size_t n) {
   double sum = 0;
   for (; i < n; ++i) sum += static_cast<double>(x[i]) * x[i];
   for (double v : lane) sum += v;
+  return sum / static_cast<double>(n);
+}
+
+double rough_mean_power(const float* x, std::size_t n) {
+  if (n == 0) return 0;
+  constexpr std::size_t kLanes = 8, kBlock = 256;  // float partial sums of 32 squares each
+  double sum = 0;
+  std::size_t i = 0;
+  for (; i + kBlock <= n; i += kBlock) {
+    float lane[kLanes] = {};
+    for (std::size_t j = 0; j < kBlock; j += kLanes)
+      for (std::size_t k = 0; k < kLanes; ++k) lane[k] += x[i + j + k] * x[i + j + k];
+    for (float v : lane) sum += v;
+  }
+  for (; i < n; ++i) sum += static_cast<double>(x[i]) * x[i];
   return sum / static_cast<double>(n);
 }
 
