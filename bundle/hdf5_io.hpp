@@ -10,6 +10,7 @@
 #include <string>
 #include <vector>
 
+#include "bundle/chunk_codec.hpp"
 #include "bundle/table.hpp"
 
 namespace stethogen::bundle::h5 {
@@ -78,7 +79,7 @@ std::vector<std::int64_t> attr_ints(hid_t obj, const std::string& name);
 std::vector<std::string> attr_names(hid_t obj);
 
 // A [rows, cols] array (rows = 1 for 1-D when one_d), chunked [1, min(chunk_cols, cols)] with
-// shuffle (optional), gzip and Fletcher32. file_type is the stored type, mem_type the buffer's.
+// shuffle (optional, only with gzip), gzip (level 0 = none) and Fletcher32. file_type is the stored type, mem_type the buffer's.
 struct ArraySpec {
   std::size_t rows = 0, cols = 0;
   bool one_d = false;
@@ -88,6 +89,9 @@ struct ArraySpec {
 };
 Id write_array(hid_t parent, const std::string& name, const void* data, hid_t mem_type, hid_t file_type,
                const ArraySpec& spec);
+// Creates a dataset with the filters of `array` and stores its already-filtered chunks as they are
+// (H5Dwrite_chunk, all filters applied): the cheap half of writing, on the HDF5 thread.
+Id write_encoded(hid_t parent, const std::string& name, const EncodedArray& array);
 std::vector<std::uint64_t> shape(hid_t dataset);
 // Reads a whole dataset converted to mem_type; out must hold the element count.
 void read_all(hid_t dataset, hid_t mem_type, void* out, const std::string& what);
