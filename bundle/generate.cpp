@@ -151,6 +151,8 @@ struct Outcome {
 // Synthesises records [begin, end) on worker threads, and filters their chunks there too (shuffle,
 // deflate, checksums: the costly part of writing); take(i) hands them to the single HDF5 writer in
 // index order. At most `window` records are held at once, so memory is flat in the record count.
+// With one thread there are no workers: take(i) synthesises record i itself, so `--threads 1`
+// keeps one core busy and N threads scale against it (the writer's share is a few ms per record).
 class RecordPipeline {
  public:
   RecordPipeline(const recipe::Recipe& recipe, RecordRange todo, unsigned threads,
@@ -158,13 +160,19 @@ class RecordPipeline {
       : recipe_(recipe), synthesize_(std::move(synthesize)), format_(attributes.sample_format),
         compression_(attributes.compression), next_dispatch_(todo.begin), end_(todo.end),
         next_write_(todo.begin),
-        window_(2 * threads) {
-    for (unsigned t = 0; t < threads; ++t) workers_.emplace_back([this] { work(); });
+        window_(2 * threads), inline_(threads <= 1) {
+    if (!inline_)
+      for (unsigned t = 0; t < threads; ++t) workers_.emplace_back([this] { work(); });
   }
   ~RecordPipeline() { stop_and_join(); }
 
   // The outcome of record i, or nullopt once stopping and i was never started.
   std::optional<Outcome> take(std::uint64_t i) {
+    if (inline_) {
+      if (stopping_ || g_signal || i >= end_) return std::nullopt;
+      next_dispatch_ = i + 1;
+      return produce(i);
+    }
     std::unique_lock lock(mu_);
     // Timed waits: a signal sets g_signal without notifying.
     while (!done_cv_.wait_for(lock, std::chrono::milliseconds(100), [&] {
@@ -210,22 +218,28 @@ class RecordPipeline {
         if (next_dispatch_ >= next_write_ + window_) continue;
         i = next_dispatch_++;
       }
-      Outcome out;
-      out.record_id = recipe::record_id(i);
-      try {
-        SubjectSpec subject = recipe::plan_record(recipe_, i);
-        out.record_id = subject.record_id;
-        out.record = synthesize_(subject);
-        out.encoded = encode_record(*out.record, RecordParts::all(), format_, compression_);
-      } catch (const RecordFailure& e) {
-        out.failure = e.what();
-      } catch (const std::exception& e) {
-        out.failure = e.what();
-      }
+      Outcome out = produce(i);
       std::lock_guard lock(mu_);
       results_.emplace(i, std::move(out));
       done_cv_.notify_all();
     }
+  }
+
+  // Record i synthesised and its chunks filtered, or why it failed.
+  Outcome produce(std::uint64_t i) {
+    Outcome out;
+    out.record_id = recipe::record_id(i);
+    try {
+      SubjectSpec subject = recipe::plan_record(recipe_, i);
+      out.record_id = subject.record_id;
+      out.record = synthesize_(subject);
+      out.encoded = encode_record(*out.record, RecordParts::all(), format_, compression_);
+    } catch (const RecordFailure& e) {
+      out.failure = e.what();
+    } catch (const std::exception& e) {
+      out.failure = e.what();
+    }
+    return out;
   }
 
   const recipe::Recipe& recipe_;
@@ -238,6 +252,7 @@ class RecordPipeline {
   std::uint64_t next_dispatch_, end_, next_write_;
   std::uint64_t window_;
   bool stopping_ = false;
+  bool inline_;
   std::vector<std::thread> workers_;
 };
 
