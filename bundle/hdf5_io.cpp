@@ -79,6 +79,19 @@ void check_status(herr_t status, const std::string& what) {
   if (status < 0) throw RuntimeFailure(what + ": " + error_reason());
 }
 
+Id bounded_cache_fapl() {
+  Id fapl(check(H5Pcreate(H5P_FILE_ACCESS), "file access properties"));
+  H5AC_cache_config_t config{};
+  config.version = H5AC__CURR_CACHE_CONFIG_VERSION;
+  check_status(H5Pget_mdc_config(fapl, &config), "metadata cache configuration");
+  config.set_initial_size = true;
+  config.initial_size = std::min<std::size_t>(config.initial_size, kMetadataCacheBytes);
+  config.min_size = std::min<std::size_t>(config.min_size, config.initial_size);
+  config.max_size = kMetadataCacheBytes;
+  check_status(H5Pset_mdc_config(fapl, &config), "metadata cache configuration");
+  return fapl;
+}
+
 Id group_plist() {
   Id plist(check(H5Pcreate(H5P_GROUP_CREATE), "group properties"));
   check_status(H5Pset_obj_track_times(plist, false), "group properties");

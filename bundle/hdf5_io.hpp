@@ -53,6 +53,12 @@ std::string error_reason();
 hid_t check(hid_t id, const std::string& what);
 void check_status(herr_t status, const std::string& what);
 
+// File access properties whose metadata cache stays at most kMetadataCacheBytes. HDF5's default
+// cache grows adaptively up to 32 MiB while a file gains objects, so assembling thousands of
+// records would raise peak memory with the record count.
+inline constexpr std::size_t kMetadataCacheBytes = 2u << 20;
+Id bounded_cache_fapl();
+
 // Creation property lists with object timestamps off, so files are reproducible.
 Id group_plist();
 Id make_group(hid_t parent, const std::string& name);

@@ -156,7 +156,12 @@ BundleWriter::BundleWriter(const fs::path& target, const BundleAttributes& attri
 
   h5::Id fcpl(h5::check(H5Pcreate(H5P_FILE_CREATE), "file properties"));
   h5::check_status(H5Pset_obj_track_times(fcpl, false), "file properties");
-  m.file = h5::Id(H5Fcreate(m.temp.c_str(), H5F_ACC_TRUNC, fcpl, H5P_DEFAULT));
+  // Chunk-index B-tree nodes of kChunkIndexK entries instead of HDF5's default 32: one node per
+  // dataset still holds a 30 s record's chunks, and a node takes ~0.7 KB instead of ~2.6 KB of
+  // file and cache for each of a record's 17 chunked datasets.
+  h5::check_status(H5Pset_istore_k(fcpl, kChunkIndexK), "file properties");
+  h5::Id fapl = h5::bounded_cache_fapl();
+  m.file = h5::Id(H5Fcreate(m.temp.c_str(), H5F_ACC_TRUNC, fcpl, fapl));
   if (!m.file.valid())
     throw RuntimeFailure(fmt::format("{}: cannot create: {}", m.temp.string(), h5::error_reason()));
   m.open = true;

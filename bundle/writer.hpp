@@ -76,6 +76,8 @@ class BundleWriter {
 // by measurement, docs/bundle-format.md).
 inline constexpr std::size_t kPcgChunkSamples = 16384;
 inline constexpr int kGzipLevel = 4;
+// Half the fan-out of the chunk-index B-tree nodes (HDF5's istore_k; its default is 32).
+inline constexpr unsigned kChunkIndexK = 8;
 
 // Full-scale integer of each integer storage: stored = round(value / scale), scale = 1 / full.
 inline constexpr std::int32_t kInt16FullScale = 32767;
