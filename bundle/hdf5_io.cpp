@@ -22,6 +22,10 @@ void init() {
     H5dont_atexit();
     H5open();
     H5Eset_auto2(H5E_DEFAULT, nullptr, nullptr);
+    // HDF5 keeps freed blocks on free lists, one list per block size, up to 16 MiB each kind by
+    // default; records give chunks of many sizes, so without a tighter bound the lists of a long
+    // run's final assembly grow with the record count.
+    H5set_free_list_limits(1 << 20, 1 << 16, 1 << 20, 1 << 16, 1 << 20, 1 << 16);
   });
 }
 
