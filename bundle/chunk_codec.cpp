@@ -96,9 +96,8 @@ class Deflater {
 };
 
 // One chunk through the filter pipeline. `scratch` is reused between chunks.
-std::vector<unsigned char> filter_chunk(std::vector<unsigned char>& chunk, std::vector<unsigned char>& scratch,
+std::vector<unsigned char> filter_chunk(std::vector<unsigned char> chunk, std::vector<unsigned char>& scratch,
                                         std::size_t elem, const ChunkFilters& f, Deflater* deflater) {
-  std::vector<unsigned char>* current = &chunk;
   if (deflater) {
     const unsigned char* src = chunk.data();
     if (f.shuffle && elem > 1) {
@@ -111,12 +110,10 @@ std::vector<unsigned char> filter_chunk(std::vector<unsigned char>& chunk, std::
     chunk.swap(out);
   }
   if (f.fletcher32) {
-    std::uint32_t sum = fletcher32(current->data(), current->size());
-    unsigned char le[4] = {static_cast<unsigned char>(sum), static_cast<unsigned char>(sum >> 8),
-                           static_cast<unsigned char>(sum >> 16), static_cast<unsigned char>(sum >> 24)};
-    current->insert(current->end(), le, le + 4);
+    const std::uint32_t sum = fletcher32(chunk.data(), chunk.size());
+    for (int shift = 0; shift < 32; shift += 8) chunk.push_back(static_cast<unsigned char>(sum >> shift));
   }
-  return std::move(*current);
+  return chunk;
 }
 
 }  // namespace
@@ -143,7 +140,7 @@ EncodedArray encode_array(const void* data, std::size_t rows, std::size_t cols, 
       const std::size_t n = std::min(a.chunk_cols, cols - c0);
       std::vector<unsigned char> chunk(a.chunk_cols * elem, 0);  // zero fill past the end
       std::memcpy(chunk.data(), bytes + (r * cols + c0) * elem, n * elem);
-      a.chunks.push_back(filter_chunk(chunk, scratch, elem, a.filters, deflater ? &*deflater : nullptr));
+      a.chunks.push_back(filter_chunk(std::move(chunk), scratch, elem, a.filters, deflater ? &*deflater : nullptr));
     }
   return a;
 }
