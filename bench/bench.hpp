@@ -6,6 +6,7 @@
 #include <string>
 #include <vector>
 
+#include "core/record.hpp"
 #include "core/subject.hpp"
 #include "recipe/recipe.hpp"
 
@@ -20,7 +21,7 @@ recipe::Recipe bench_recipe(const std::string& source_dir, std::uint64_t count, 
 
 // CPU seconds per stage, summed over records.
 struct StageTimes {
-  double rhythm = 0, circulation = 0, sources = 0, transmission = 0, noise = 0, output = 0, truth = 0, writing = 0;
+  double rhythm = 0, circulation = 0, sources = 0, transmission = 0, noise = 0, output = 0, truth = 0;
   double pipeline = 0;  // synthesize_record as a whole
   double audio_s = 0;   // recorded seconds
   double simulated_s = 0;  // seconds the ODE covered (run-in + series)
@@ -28,7 +29,21 @@ struct StageTimes {
   double run_in_simulated_s = 0;
   std::uint64_t records = 0;
 };
-StageTimes time_stages(const recipe::Recipe& recipe, std::uint64_t records, const std::string& scratch_dir);
+// Also hands back the synthesised records (for time_writing) when `kept` is given.
+StageTimes time_stages(const recipe::Recipe& recipe, std::uint64_t records, std::vector<Record>* kept = nullptr);
+
+// Writing the records as `generate` does (bench/writing_timing.cpp): thread CPU seconds summed
+// over records, and the final bundle's size.
+struct WritingTimes {
+  double encode_s = 0;    // chunk filtering (shuffle, deflate, Fletcher32): on the synthesis threads
+  double store_s = 0;     // one-record scratch bundles: on the single HDF5 thread
+  double assemble_s = 0;  // the final copy into one bundle: single thread, after the last record
+  double audio_s = 0;
+  std::uint64_t bytes = 0, records = 0;
+  double total_s() const { return encode_s + store_s + assemble_s; }
+};
+WritingTimes time_writing(const std::vector<Record>& records, const recipe::Recipe& recipe, Compression compression,
+                          const std::string& scratch_dir);
 
 // A child process's wall time, CPU time and peak resident memory.
 struct ProcessRun {

@@ -12,6 +12,7 @@
 #include <fmt/format.h>
 
 #include "bench/bench.hpp"
+#include "recipe/compression.hpp"
 
 namespace fs = std::filesystem;
 using namespace stethogen;
@@ -34,12 +35,34 @@ void print_stages(const bench::StageTimes& t) {
   row("truth", t.truth);
   row("sum of stages", t.rhythm + t.circulation + t.sources + t.transmission + t.noise + t.output + t.truth);
   row("pipeline", t.pipeline);
-  row("HDF5 writing", t.writing);
-  row("pipeline+write", t.pipeline + t.writing);
   fmt::print("  ODE: {:.0f} steps and {:.0f} rhs evaluations per simulated second ({:.1f} s simulated per record, "
              "{:.1f} s of it run-in)\n",
              static_cast<double>(t.ode_steps) / t.simulated_s, static_cast<double>(t.rhs_evaluations) / t.simulated_s,
              t.simulated_s / static_cast<double>(t.records), t.run_in_simulated_s / static_cast<double>(t.records));
+}
+
+// Writing per compression setting; returns the recipe's (default) setting's total CPU seconds.
+double print_writing(const std::vector<Record>& records, const recipe::Recipe& recipe, const bench::StageTimes& t,
+                     const std::string& scratch) {
+  fmt::print("\nWriting ({} records as generate writes them; thread CPU; sample format {}):\n", records.size(),
+             name(recipe.dataset.sample_format));
+  fmt::print("  {:<9} {:>10} {:>10} {:>11} {:>10} {:>12} {:>14}\n", "setting", "encode ms", "store ms", "assemble ms",
+             "total ms", "x real time", "MB/audio hour");
+  double chosen = 0;
+  for (Compression c : kAllCompressions) {
+    const bench::WritingTimes w = bench::time_writing(records, recipe, c, scratch);
+    const double per = 1e3 / static_cast<double>(w.records);
+    fmt::print("  {:<9} {:>10.2f} {:>10.2f} {:>11.2f} {:>10.2f} {:>12.0f} {:>14.1f}{}\n", name(c), w.encode_s * per,
+               w.store_s * per, w.assemble_s * per, w.total_s() * per, w.audio_s / w.total_s(),
+               static_cast<double>(w.bytes) / 1e6 / (w.audio_s / 3600.0), c == recipe.dataset.compression ? "  (recipe)" : "");
+    if (c == recipe.dataset.compression) chosen = w.total_s();
+  }
+  fmt::print("  encode runs on the synthesis threads, store and assemble on generate's single HDF5 thread\n");
+  const double whole = t.pipeline + chosen;
+  fmt::print("Whole pipeline (synthesis + writing, compression \"{}\"): {:.2f} ms per record, {:.0f}x real time on "
+             "one core\n", name(recipe.dataset.compression), 1e3 * whole / static_cast<double>(t.records),
+             t.audio_s / whole);
+  return chosen;
 }
 
 bench::ProcessRun generate(const std::string& binary, const std::string& source, const std::string& scratch,
@@ -59,7 +82,7 @@ bench::ProcessRun generate(const std::string& binary, const std::string& source,
 int main(int argc, char** argv) {
   CLI::App app{"stethogen benchmark (docs/performance.md)"};
   std::string source = STETHOGEN_SOURCE_DIR, binary, python = "/usr/bin/python3", scratch;
-  std::uint64_t stage_records = 5, thread_records = 12;
+  std::uint64_t stage_records = 5, thread_records = 40;  // 40: the serial final assembly is a small share, as in a real run
   double memory_duration_s = 5.0;
   std::vector<std::uint64_t> memory_counts{100, 1000};
   bool skip_reference = false, skip_processes = false;
@@ -87,7 +110,13 @@ int main(int argc, char** argv) {
     double load[3] = {0, 0, 0};
     if (getloadavg(load, 3) > 0) fmt::print("Machine: {} cores, load average {:.1f}\n", std::thread::hardware_concurrency(), load[0]);
 
-    print_stages(bench::time_stages(bench::bench_recipe(source, stage_records, 30.0), stage_records, scratch));
+    {
+      const recipe::Recipe stage_recipe = bench::bench_recipe(source, stage_records, 30.0);
+      std::vector<Record> records;
+      const bench::StageTimes stages = bench::time_stages(stage_recipe, stage_records, &records);
+      print_stages(stages);
+      print_writing(records, stage_recipe, stages, scratch);
+    }
     if (engine_max_step_ms > 0)
       bench::compare_engine_settings(bench::bench_recipe(source, 1, 30.0), 1e-3 * engine_max_step_ms, engine_tolerance);
     bool ok = true;
@@ -108,8 +137,8 @@ int main(int argc, char** argv) {
                    best.records_per_s, 1e3 * best.cpu_s_per_record);
       }
       fmt::print("  2 threads / 1 thread: {:.2f}x\n", alone[2] / alone[1]);
-      fmt::print("\nstethogen generate ({} records of 30 s, best of {}; one writer thread besides the workers):\n",
-                 thread_records, repeats);
+      fmt::print("\nstethogen generate ({} records of 30 s, best of {}; workers synthesise and filter chunks, one HDF5 "
+                 "thread stores them):\n", thread_records, repeats);
       double rate[3] = {0, 0, 0};
       for (unsigned threads : {1u, 2u}) {
         bench::ProcessRun r = generate(binary, source, scratch, thread_records, 30.0, threads);
@@ -118,13 +147,14 @@ int main(int argc, char** argv) {
           if (again.wall_s < r.wall_s) r = again;
         }
         rate[threads] = static_cast<double>(thread_records) / r.wall_s;
-        fmt::print("  --threads {}: {:.2f} records/s (wall {:.2f} s, CPU {:.2f} s, {:.0f}x real time per CPU second, "
-                   "max RSS {:.1f} MiB)\n",
-                   threads, rate[threads], r.wall_s, r.cpu_s, 30.0 * static_cast<double>(thread_records) / r.cpu_s,
-                   static_cast<double>(r.max_rss_kib) / 1024.0);
+        fmt::print("  --threads {}: {:.2f} records/s (wall {:.2f} s, CPU {:.2f} s = {:.1f} ms per record, {:.0f}x real "
+                   "time per CPU second, max RSS {:.1f} MiB)\n",
+                   threads, rate[threads], r.wall_s, r.cpu_s, 1e3 * r.cpu_s / static_cast<double>(thread_records),
+                   30.0 * static_cast<double>(thread_records) / r.cpu_s, static_cast<double>(r.max_rss_kib) / 1024.0);
       }
-      fmt::print("  2 threads / 1 thread: {:.2f}x (wall clock; depends on what else the machine runs)\n",
-                 rate[2] / rate[1]);
+      getloadavg(load, 3);
+      fmt::print("  2 threads / 1 thread: {:.2f}x (wall clock; depends on what else the machine runs: load average "
+                 "now {:.1f})\n", rate[2] / rate[1], load[0]);
       fmt::print("\nPeak memory (stethogen generate --threads 2, records of {:.0f} s):\n", memory_duration_s);
       for (std::uint64_t count : memory_counts) {
         bench::ProcessRun r = generate(binary, source, scratch, count, memory_duration_s, 2);

@@ -1,5 +1,6 @@
 // Stage timings: the stage functions of generator/pipeline.cpp called one by one with a thread
 // CPU clock around each, then the whole synthesize_record on the same subject for the total.
+// Writing is timed separately (writing_timing.cpp).
 #include <time.h>
 
 #include <algorithm>
@@ -10,7 +11,6 @@
 #include <stdexcept>
 
 #include "bench/bench.hpp"
-#include "bundle/writer.hpp"
 #include "generator/circulation/simulate.hpp"
 #include "generator/pipeline.hpp"
 #include "generator/sources/heart_sounds.hpp"
@@ -70,17 +70,8 @@ void rhythm_stage(const SubjectSpec& subject) {
 
 }  // namespace
 
-StageTimes time_stages(const recipe::Recipe& recipe, std::uint64_t records, const std::string& scratch_dir) {
+StageTimes time_stages(const recipe::Recipe& recipe, std::uint64_t records, std::vector<Record>* kept) {
   StageTimes t;
-  bundle::BundleAttributes attributes;
-  attributes.recipe_toml = recipe.text;
-  attributes.record_count = records;
-  attributes.seed = recipe.dataset.seed;
-  bundle::WriterOptions wopt;
-  wopt.overwrite = true;
-  wopt.durable = false;
-  const std::filesystem::path target = std::filesystem::path(scratch_dir) / "stages.h5";
-  bundle::BundleWriter writer(target, attributes, wopt);
   for (std::uint64_t i = 0; i < records; ++i) {
     const SubjectSpec subject = recipe::plan_record(recipe, i);
     double c0 = thread_cpu_s();
@@ -127,8 +118,7 @@ StageTimes time_stages(const recipe::Recipe& recipe, std::uint64_t records, cons
     Record record = gen::synthesize_record(subject);
     double c8 = thread_cpu_s();
     t.pipeline += c8 - c7;
-    writer.write_record(record);
-    t.writing += thread_cpu_s() - c8;
+    if (kept) kept->push_back(std::move(record));
 
     t.audio_s += subject.params.duration_s;
     t.ode_steps += circ.ode_steps;
@@ -138,8 +128,6 @@ StageTimes time_stages(const recipe::Recipe& recipe, std::uint64_t records, cons
     t.simulated_s += run.run_in_beats * rr0 + (s.time_at(s.size() - 1) - run.recording_start_s);
     ++t.records;
   }
-  writer.finish();
-  std::filesystem::remove(target);
   return t;
 }
 

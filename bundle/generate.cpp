@@ -15,6 +15,7 @@
 #include <fmt/format.h>
 #include <nlohmann/json.hpp>
 
+#include "bundle/chunk_codec.hpp"
 #include "bundle/merge.hpp"
 #include "bundle/reader.hpp"
 #include "bundle/writer.hpp"
@@ -139,28 +140,39 @@ struct StopOnFailure : RuntimeFailure {
   using RuntimeFailure::RuntimeFailure;
 };
 
-// One synthesised record or the reason it failed.
+// One synthesised record (with its chunked arrays already filtered) or the reason it failed.
 struct Outcome {
   std::optional<Record> record;
+  std::optional<EncodedRecord> encoded;
   std::string record_id;
   std::string failure;
 };
 
-// Synthesises records [begin, end) on worker threads; take(i) hands them to the single writer in
+// Synthesises records [begin, end) on worker threads, and filters their chunks there too (shuffle,
+// deflate, checksums: the costly part of writing); take(i) hands them to the single HDF5 writer in
 // index order. At most `window` records are held at once, so memory is flat in the record count.
+// With one thread there are no workers: take(i) synthesises record i itself, so `--threads 1`
+// keeps one core busy and N threads scale against it (the writer's share is a few ms per record).
 class RecordPipeline {
  public:
   RecordPipeline(const recipe::Recipe& recipe, RecordRange todo, unsigned threads,
-                 std::function<Record(const SubjectSpec&)> synthesize)
-      : recipe_(recipe), synthesize_(std::move(synthesize)), next_dispatch_(todo.begin), end_(todo.end),
+                 std::function<Record(const SubjectSpec&)> synthesize, const BundleAttributes& attributes)
+      : recipe_(recipe), synthesize_(std::move(synthesize)), format_(attributes.sample_format),
+        compression_(attributes.compression), next_dispatch_(todo.begin), end_(todo.end),
         next_write_(todo.begin),
-        window_(2 * threads) {
-    for (unsigned t = 0; t < threads; ++t) workers_.emplace_back([this] { work(); });
+        window_(2 * threads), inline_(threads <= 1) {
+    if (!inline_)
+      for (unsigned t = 0; t < threads; ++t) workers_.emplace_back([this] { work(); });
   }
   ~RecordPipeline() { stop_and_join(); }
 
   // The outcome of record i, or nullopt once stopping and i was never started.
   std::optional<Outcome> take(std::uint64_t i) {
+    if (inline_) {
+      if (stopping_ || g_signal || i >= end_) return std::nullopt;
+      next_dispatch_ = i + 1;
+      return produce(i);
+    }
     std::unique_lock lock(mu_);
     // Timed waits: a signal sets g_signal without notifying.
     while (!done_cv_.wait_for(lock, std::chrono::milliseconds(100), [&] {
@@ -206,31 +218,41 @@ class RecordPipeline {
         if (next_dispatch_ >= next_write_ + window_) continue;
         i = next_dispatch_++;
       }
-      Outcome out;
-      out.record_id = recipe::record_id(i);
-      try {
-        SubjectSpec subject = recipe::plan_record(recipe_, i);
-        out.record_id = subject.record_id;
-        out.record = synthesize_(subject);
-      } catch (const RecordFailure& e) {
-        out.failure = e.what();
-      } catch (const std::exception& e) {
-        out.failure = e.what();
-      }
+      Outcome out = produce(i);
       std::lock_guard lock(mu_);
       results_.emplace(i, std::move(out));
       done_cv_.notify_all();
     }
   }
 
+  // Record i synthesised and its chunks filtered, or why it failed.
+  Outcome produce(std::uint64_t i) {
+    Outcome out;
+    out.record_id = recipe::record_id(i);
+    try {
+      SubjectSpec subject = recipe::plan_record(recipe_, i);
+      out.record_id = subject.record_id;
+      out.record = synthesize_(subject);
+      out.encoded = encode_record(*out.record, RecordParts::all(), format_, compression_);
+    } catch (const RecordFailure& e) {
+      out.failure = e.what();
+    } catch (const std::exception& e) {
+      out.failure = e.what();
+    }
+    return out;
+  }
+
   const recipe::Recipe& recipe_;
   std::function<Record(const SubjectSpec&)> synthesize_;
+  SampleFormat format_;
+  Compression compression_;
   std::mutex mu_;
   std::condition_variable done_cv_, space_cv_;
   std::map<std::uint64_t, Outcome> results_;
   std::uint64_t next_dispatch_, end_, next_write_;
   std::uint64_t window_;
   bool stopping_ = false;
+  bool inline_;
   std::vector<std::thread> workers_;
 };
 
@@ -241,6 +263,7 @@ BundleAttributes run_attributes(const recipe::Recipe& recipe, const Shard& shard
   a.seed = recipe.dataset.seed;
   a.record_count = recipe::record_count(recipe);
   a.sample_format = recipe.dataset.sample_format;
+  a.compression = recipe.dataset.compression;
   if (!shard.whole()) {
     a.shard_index = static_cast<std::int32_t>(shard.index);
     a.shard_count = static_cast<std::int32_t>(shard.count);
@@ -326,7 +349,7 @@ GenerateResult generate(const GenerateOptions& options) {
   unsigned threads = options.threads ? options.threads : std::max(1u, std::thread::hardware_concurrency());
   auto synthesize = options.synthesize ? options.synthesize
                                        : [](const SubjectSpec& s) { return gen::synthesize_record(s); };
-  RecordPipeline pipeline(recipe, {next, range.end}, threads, synthesize);
+  RecordPipeline pipeline(recipe, {next, range.end}, threads, synthesize, attributes);
 
   // The single writer: one scratch bundle per record, in record order.
   auto write = [&](std::uint64_t i, const Outcome& out) {
@@ -335,7 +358,7 @@ GenerateResult generate(const GenerateOptions& options) {
     wo.overwrite = true;
     wo.durable = false;
     BundleWriter writer(workdir / scratch_name(i), attributes, wo);
-    if (out.record) writer.write_record(*out.record);
+    if (out.record) writer.write_record(*out.record, *out.encoded);
     else writer.add_skipped({out.record_id, i, out.failure});
     writer.finish();
   };

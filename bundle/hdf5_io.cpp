@@ -22,6 +22,10 @@ void init() {
     H5dont_atexit();
     H5open();
     H5Eset_auto2(H5E_DEFAULT, nullptr, nullptr);
+    // HDF5 keeps freed blocks on free lists, one list per block size, up to 16 MiB each kind by
+    // default; records give chunks of many sizes, so without a tighter bound the lists of a long
+    // run's final assembly grow with the record count.
+    H5set_free_list_limits(1 << 20, 1 << 16, 1 << 20, 1 << 16, 1 << 20, 1 << 16);
   });
 }
 
@@ -77,6 +81,19 @@ hid_t check(hid_t id, const std::string& what) {
 
 void check_status(herr_t status, const std::string& what) {
   if (status < 0) throw RuntimeFailure(what + ": " + error_reason());
+}
+
+Id bounded_cache_fapl() {
+  Id fapl(check(H5Pcreate(H5P_FILE_ACCESS), "file access properties"));
+  H5AC_cache_config_t config{};
+  config.version = H5AC__CURR_CACHE_CONFIG_VERSION;
+  check_status(H5Pget_mdc_config(fapl, &config), "metadata cache configuration");
+  config.set_initial_size = true;
+  config.initial_size = std::min<std::size_t>(config.initial_size, kMetadataCacheBytes);
+  config.min_size = std::min<std::size_t>(config.min_size, config.initial_size);
+  config.max_size = kMetadataCacheBytes;
+  check_status(H5Pset_mdc_config(fapl, &config), "metadata cache configuration");
+  return fapl;
 }
 
 Id group_plist() {
@@ -257,13 +274,51 @@ Id write_array(hid_t parent, const std::string& name, const void* data, hid_t me
     std::vector<hsize_t> chunk = spec.one_d ? std::vector<hsize_t>{std::min(spec.chunk_cols, spec.cols)}
                                             : std::vector<hsize_t>{1, std::min(spec.chunk_cols, spec.cols)};
     check_status(H5Pset_chunk(dcpl, static_cast<int>(chunk.size()), chunk.data()), name);
-    if (spec.shuffle) check_status(H5Pset_shuffle(dcpl), name);
+    if (spec.shuffle && spec.gzip_level > 0) check_status(H5Pset_shuffle(dcpl), name);
     if (spec.gzip_level > 0) check_status(H5Pset_deflate(dcpl, static_cast<unsigned>(spec.gzip_level)), name);
     check_status(H5Pset_fletcher32(dcpl), name);
   }
   Id ds(check(H5Dcreate2(parent, name.c_str(), file_type, space, H5P_DEFAULT, dcpl, H5P_DEFAULT), name));
   if (spec.rows > 0 && spec.cols > 0)
     check_status(H5Dwrite(ds, mem_type, H5S_ALL, H5S_ALL, H5P_DEFAULT, data), name);
+  return ds;
+}
+
+namespace {
+hid_t file_type_of(StoredType t) {
+  switch (t) {
+    case StoredType::u8: return H5T_STD_U8LE;
+    case StoredType::i16: return H5T_STD_I16LE;
+    case StoredType::i32: return H5T_STD_I32LE;
+    case StoredType::f32: return H5T_IEEE_F32LE;
+  }
+  return -1;
+}
+}  // namespace
+
+Id write_encoded(hid_t parent, const std::string& name, const EncodedArray& a) {
+  std::vector<hsize_t> dims = a.one_d ? std::vector<hsize_t>{a.cols} : std::vector<hsize_t>{a.rows, a.cols};
+  Id space(check(H5Screate_simple(static_cast<int>(dims.size()), dims.data(), nullptr), name));
+  Id dcpl(check(H5Pcreate(H5P_DATASET_CREATE), name));
+  check_status(H5Pset_obj_track_times(dcpl, false), name);
+  const bool chunked = !a.chunks.empty();
+  if (chunked) {
+    std::vector<hsize_t> chunk = a.one_d ? std::vector<hsize_t>{a.chunk_cols} : std::vector<hsize_t>{1, a.chunk_cols};
+    check_status(H5Pset_chunk(dcpl, static_cast<int>(chunk.size()), chunk.data()), name);
+    if (a.filters.shuffle) check_status(H5Pset_shuffle(dcpl), name);
+    if (a.filters.deflate_level > 0)
+      check_status(H5Pset_deflate(dcpl, static_cast<unsigned>(a.filters.deflate_level)), name);
+    if (a.filters.fletcher32) check_status(H5Pset_fletcher32(dcpl), name);
+  }
+  Id ds(check(H5Dcreate2(parent, name.c_str(), file_type_of(a.type), space, H5P_DEFAULT, dcpl, H5P_DEFAULT), name));
+  if (!chunked) return ds;
+  const std::size_t per_row = a.chunks_per_row();
+  for (std::size_t k = 0; k < a.chunks.size(); ++k) {
+    const hsize_t col = (k % per_row) * a.chunk_cols;
+    const hsize_t two_d[2] = {k / per_row, col};
+    const hsize_t* offset = a.one_d ? &two_d[1] : two_d;
+    check_status(H5Dwrite_chunk(ds, H5P_DEFAULT, 0, offset, a.chunks[k].size(), a.chunks[k].data()), name);
+  }
   return ds;
 }
 

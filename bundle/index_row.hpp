@@ -12,6 +12,7 @@
 #include "core/record.hpp"
 #include "core/types.hpp"
 #include "core/version.hpp"
+#include "recipe/compression.hpp"
 
 namespace stethogen::bundle {
 
@@ -53,6 +54,9 @@ struct BundleAttributes {
   std::uint64_t record_count = 0;  // records the recipe plans for the whole dataset
   SampleFormat sample_format = SampleFormat::float32;  // storage of pcg and pcg_clean
   std::string content = "full";  // "full"; split writes "public" / "key"
+  // dataset.compression the records were written with; bundles written before the key existed
+  // were all "compact" (shuffle + deflate 4), which is what a reader assumes when it is absent.
+  Compression compression = Compression::fast;
   // Shard files only: 0-based shard index and shard count; -1 / 0 for a whole dataset.
   std::int32_t shard_index = -1;
   std::int32_t shard_count = 0;

@@ -71,6 +71,9 @@ BundleReader::BundleReader(const fs::path& path) : impl_(std::make_unique<Impl>(
     a.record_count = h5::attr_u64(root, "record_count");
     if (auto f = parse_sample_format(h5::attr_string(root, "sample_format"))) a.sample_format = *f;
     a.content = h5::attr_string(root, "content");
+    a.compression = Compression::compact;
+    if (h5::has_attr(root, "compression"))
+      if (auto c = parse_compression(h5::attr_string(root, "compression"))) a.compression = *c;
     if (h5::has_attr(root, "shard")) {
       auto shard = h5::attr_ints(root, "shard");
       if (shard.size() == 2) {
@@ -81,7 +84,7 @@ BundleReader::BundleReader(const fs::path& path) : impl_(std::make_unique<Impl>(
     a.created_utc = h5::attr_string(root, "created_utc");
     static const std::vector<std::string> known = {"format", "format_version", "generator_version", "recipe_toml",
                                                    "recipe_sha256", "seed", "record_count", "sample_format",
-                                                   "content", "shard", "created_utc"};
+                                                   "content", "compression", "shard", "created_utc"};
     for (const std::string& n : h5::attr_names(root))
       if (std::find(known.begin(), known.end(), n) == known.end()) a.extra.emplace_back(n, h5::attr_string(root, n));
 

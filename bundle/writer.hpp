@@ -13,6 +13,7 @@
 namespace stethogen::bundle {
 
 class BundleReader;
+struct EncodedRecord;
 
 struct WriterOptions {
   // Temporary file; empty = "<target>.partial". Must be on the target's file system.
@@ -39,6 +40,10 @@ class BundleWriter {
   // and in its /index row. pcg is stored in attributes.sample_format. Throws RuntimeFailure
   // naming the dataset on a write error (disk full), InputError for a duplicate id.
   void write_record(const Record& record, const RecordParts& parts = RecordParts::all(),
+                    const std::string& record_id_override = {});
+  // The same with the chunked arrays already filtered (encode_record with this bundle's
+  // sample_format and compression, e.g. on a synthesis thread): only HDF5 bookkeeping is left.
+  void write_record(const Record& record, const EncodedRecord& encoded, const RecordParts& parts = RecordParts::all(),
                     const std::string& record_id_override = {});
 
   // Copies /records/<record_id> of another bundle unchanged (raw compressed chunks) and its
@@ -67,10 +72,12 @@ class BundleWriter {
   std::unique_ptr<Impl> impl_;
 };
 
-// Samples per chunk along the sample axis and the gzip level the writer uses (chosen by
-// measurement, docs/bundle-format.md).
+// Samples per chunk along the sample axis, and the gzip level of compression = "compact" (chosen
+// by measurement, docs/bundle-format.md).
 inline constexpr std::size_t kPcgChunkSamples = 16384;
 inline constexpr int kGzipLevel = 4;
+// Half the fan-out of the chunk-index B-tree nodes (HDF5's istore_k; its default is 32).
+inline constexpr unsigned kChunkIndexK = 8;
 
 // Full-scale integer of each integer storage: stored = round(value / scale), scale = 1 / full.
 inline constexpr std::int32_t kInt16FullScale = 32767;

@@ -64,7 +64,7 @@ DatasetSpec parse_dataset(const Fields& f, const toml::table& doc) {
   const toml::table& t = f.table(*node, "dataset");
   f.reject_unknown_keys(t, "dataset",
                         {"name", "seed", "sample_rate_hz", "duration_s", "sites", "sensor",
-                         "sample_format", "output", "on_record_error"});
+                         "sample_format", "compression", "output", "on_record_error"});
   DatasetSpec d;
   const toml::node* name_node = t.get("name");
   if (!name_node) f.fail(t, "dataset.name: missing (the dataset needs a name)");
@@ -83,6 +83,8 @@ DatasetSpec parse_dataset(const Fields& f, const toml::table& doc) {
   if (auto n = t.get("sample_format"))
     d.sample_format = enum_value(f, *n, "dataset.sample_format", names_of(kAllSampleFormats),
                                  parse_sample_format);
+  if (auto n = t.get("compression"))
+    d.compression = enum_value(f, *n, "dataset.compression", names_of(kAllCompressions), parse_compression);
   d.output = d.name + ".h5";
   if (auto n = t.get("output")) {
     d.output = f.string(*n, "dataset.output");

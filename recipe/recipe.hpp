@@ -13,6 +13,7 @@
 #include <vector>
 
 #include "core/types.hpp"
+#include "recipe/compression.hpp"
 #include "recipe/distribution.hpp"
 #include "recipe/parameters.hpp"
 
@@ -33,6 +34,7 @@ struct DatasetSpec {
   SampleFormat sample_format = SampleFormat::float32;
   std::string output;  // default "<name>.h5"
   FailurePolicy on_record_error = FailurePolicy::stop;
+  Compression compression = Compression::fast;  // bundle filters (docs/bundle-format.md "Storage")
 };
 
 // Which noise profile a subject gets: one name, or a weighted choice of names. Empty: none.

@@ -32,12 +32,18 @@ def check_fields(ds, expected, where):
     need(units is not None and len(units) == len(expected), f"{where}: 'units' attribute missing or wrong length")
 
 
-def check_filters(ds, where):
-    # Chunked with gzip and Fletcher32 (docs/bundle-format.md, "Storage"), unless empty.
+# Root attribute `compression` (set in main); bundles without it were written "compact".
+COMPRESSION = ["compact"]
+
+
+def check_filters(ds, where, plain_in_fast=False):
+    # Chunked with Fletcher32 always; deflate as dataset.compression chooses (docs/bundle-format.md,
+    # "Storage"): every dataset under "compact", none under "none", all but float32 audio under "fast".
     if ds.size == 0:
         return
     need(ds.chunks is not None, f"{where}: not chunked")
-    need(ds.compression == "gzip", f"{where}: compression {ds.compression}")
+    deflate = COMPRESSION[0] == "compact" or (COMPRESSION[0] == "fast" and not plain_in_fast)
+    need(ds.compression == ("gzip" if deflate else None), f"{where}: compression {ds.compression} under {COMPRESSION[0]}")
     need(ds.fletcher32, f"{where}: no Fletcher32 checksum")
 
 
@@ -67,7 +73,7 @@ RECORD_ATTRS = {"record_index", "population", "state", "exercise_intensity", "se
 def check_pcg(ds, where, fmt, n_sites, n_samples, rate):
     need(ds.dtype == PCG_DTYPES[fmt], f"{where}: dtype {ds.dtype} for sample_format {fmt}")
     need(ds.shape == (n_sites, n_samples), f"{where}: shape {ds.shape} != {(n_sites, n_samples)}")
-    check_filters(ds, where)
+    check_filters(ds, where, plain_in_fast=fmt == "float32")
     need(ds.attrs["sample_rate_hz"] == rate, f"{where}: sample_rate_hz")
     need(len(ds.attrs["sites"]) == n_sites, f"{where}: sites")
     need(ds.attrs["unit"] == "full_scale", f"{where}: unit")
@@ -92,6 +98,8 @@ def main():
     # hashlib is the reference SHA-256 (FIPS 180-4).
     need(hashlib.sha256(a["recipe_toml"].encode()).hexdigest() == a["recipe_sha256"], "recipe_sha256 mismatch")
     fmt = a["sample_format"]
+    COMPRESSION[0] = a.get("compression", "compact")
+    need(COMPRESSION[0] in ("fast", "compact", "none"), f"compression {COMPRESSION[0]}")
     need(fmt in PCG_DTYPES, f"sample_format {fmt}")
 
     index = f["index"]

@@ -70,6 +70,7 @@ const std::vector<BadRecipe> kCorpus = {
     {"sites_duplicate", R"(3:20: dataset.sites[1] = "aortic": listed twice)"},
     {"sites_empty", "3:9: dataset.sites: must list at least one of aortic, pulmonic, tricuspid, mitral"},
     {"sensor_unknown", R"(3:10: dataset.sensor = "piezo": must be one of acoustic_bell, acoustic_diaphragm, electronic, accelerometer)"},
+    {"compression_unknown", R"(3:15: dataset.compression = "compakt": must be one of fast, compact, none (did you mean 'compact'?))"},
     {"state_unknown", R"(7:9: population[0].state = "exercize": must be one of rest, exercise, lv_failure, rv_failure, global_failure (did you mean 'exercise'?))"},
     // intensity and severity against the state
     {"intensity_on_failure", R"(8:13: population[0].intensity: only for state "exercise" (this state is "rv_failure"; failure states take severity))"},

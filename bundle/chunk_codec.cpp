@@ -1,0 +1,214 @@
+#include "bundle/chunk_codec.hpp"
+
+#include <zlib.h>
+
+#include <algorithm>
+#include <bit>
+#include <cmath>
+#include <cstring>
+#include <optional>
+#include <stdexcept>
+
+#include "bundle/writer.hpp"
+#include "core/error.hpp"
+
+namespace stethogen::bundle {
+
+static_assert(std::endian::native == std::endian::little, "chunk bytes are written in native order");
+
+std::size_t element_size(StoredType t) {
+  switch (t) {
+    case StoredType::u8: return 1;
+    case StoredType::i16: return 2;
+    case StoredType::i32: return 4;
+    case StoredType::f32: return 4;
+  }
+  return 1;
+}
+
+std::uint32_t fletcher32(const unsigned char* data, std::size_t n_bytes) {
+  // Sums folded every 360 words, before they can overflow 32 bits (as in HDF5's H5checksum.c).
+  std::uint32_t sum1 = 0, sum2 = 0;
+  std::size_t words = n_bytes / 2;
+  while (words) {
+    std::size_t block = std::min<std::size_t>(words, 360);
+    words -= block;
+    for (; block; --block, data += 2) {
+      sum1 += (std::uint32_t(data[0]) << 8) | data[1];
+      sum2 += sum1;
+    }
+    sum1 = (sum1 & 0xffff) + (sum1 >> 16);
+    sum2 = (sum2 & 0xffff) + (sum2 >> 16);
+  }
+  if (n_bytes % 2) {
+    sum1 += std::uint32_t(*data) << 8;
+    sum2 += sum1;
+    sum1 = (sum1 & 0xffff) + (sum1 >> 16);
+    sum2 = (sum2 & 0xffff) + (sum2 >> 16);
+  }
+  sum1 = (sum1 & 0xffff) + (sum1 >> 16);
+  sum2 = (sum2 & 0xffff) + (sum2 >> 16);
+  return (sum2 << 16) | sum1;
+}
+
+namespace {
+
+// HDF5's shuffle filter: byte k of every element together, k = 0 .. size-1.
+template <std::size_t Size>
+void shuffle_fixed(const unsigned char* in, unsigned char* out, std::size_t elements) {
+  for (std::size_t e = 0; e < elements; ++e)
+    for (std::size_t k = 0; k < Size; ++k) out[k * elements + e] = in[e * Size + k];
+}
+void shuffle_bytes(const unsigned char* in, unsigned char* out, std::size_t elements, std::size_t size) {
+  if (size == 2) return shuffle_fixed<2>(in, out, elements);
+  if (size == 4) return shuffle_fixed<4>(in, out, elements);
+  for (std::size_t k = 0; k < size; ++k)
+    for (std::size_t e = 0; e < elements; ++e) out[k * elements + e] = in[e * size + k];
+}
+
+// One zlib stream reused for every chunk of an array. With the default strategy its output is
+// compress2's (deflateInit2 with compress2's window and memory level), i.e. HDF5's own filter's.
+class Deflater {
+ public:
+  Deflater(int level, bool run_length) {
+    if (deflateInit2(&z_, level, Z_DEFLATED, MAX_WBITS, 8, run_length ? Z_RLE : Z_DEFAULT_STRATEGY) != Z_OK)
+      throw RuntimeFailure("deflate: cannot initialise zlib");
+  }
+  ~Deflater() { deflateEnd(&z_); }
+  Deflater(const Deflater&) = delete;
+  Deflater& operator=(const Deflater&) = delete;
+
+  // out gets the compressed bytes (with 4 bytes of room for the checksum).
+  void compress(const unsigned char* src, std::size_t n, std::vector<unsigned char>& out) {
+    deflateReset(&z_);
+    out.resize(deflateBound(&z_, static_cast<uLong>(n)) + 4);
+    z_.next_in = const_cast<unsigned char*>(src);
+    z_.avail_in = static_cast<uInt>(n);
+    z_.next_out = out.data();
+    z_.avail_out = static_cast<uInt>(out.size());
+    int status = deflate(&z_, Z_FINISH);
+    if (status != Z_STREAM_END) throw RuntimeFailure("deflate failed (zlib status " + std::to_string(status) + ")");
+    out.resize(z_.total_out);
+  }
+
+ private:
+  z_stream z_{};
+};
+
+// One chunk through the filter pipeline. `scratch` is reused between chunks.
+std::vector<unsigned char> filter_chunk(std::vector<unsigned char> chunk, std::vector<unsigned char>& scratch,
+                                        std::size_t elem, const ChunkFilters& f, Deflater* deflater) {
+  if (deflater) {
+    const unsigned char* src = chunk.data();
+    if (f.shuffle && elem > 1) {
+      scratch.resize(chunk.size());
+      shuffle_bytes(chunk.data(), scratch.data(), chunk.size() / elem, elem);
+      src = scratch.data();
+    }
+    std::vector<unsigned char> out;
+    deflater->compress(src, chunk.size(), out);
+    chunk.swap(out);
+  }
+  if (f.fletcher32) {
+    const std::uint32_t sum = fletcher32(chunk.data(), chunk.size());
+    for (int shift = 0; shift < 32; shift += 8) chunk.push_back(static_cast<unsigned char>(sum >> shift));
+  }
+  return chunk;
+}
+
+}  // namespace
+
+EncodedArray encode_array(const void* data, std::size_t rows, std::size_t cols, bool one_d, StoredType type,
+                          std::size_t chunk_cols, const ChunkFilters& filters) {
+  EncodedArray a;
+  a.rows = rows;
+  a.cols = cols;
+  a.one_d = one_d;
+  a.type = type;
+  a.filters = filters;
+  if (filters.deflate_level == 0) a.filters.shuffle = false;
+  if (rows == 0 || cols == 0) return a;
+  a.chunk_cols = std::min(chunk_cols, cols);
+  const std::size_t elem = element_size(type);
+  const auto* bytes = static_cast<const unsigned char*>(data);
+  std::vector<unsigned char> scratch;
+  std::optional<Deflater> deflater;
+  if (a.filters.deflate_level > 0) deflater.emplace(a.filters.deflate_level, a.filters.run_length);
+  a.chunks.reserve(rows * a.chunks_per_row());
+  for (std::size_t r = 0; r < rows; ++r)
+    for (std::size_t c0 = 0; c0 < cols; c0 += a.chunk_cols) {
+      const std::size_t n = std::min(a.chunk_cols, cols - c0);
+      std::vector<unsigned char> chunk(a.chunk_cols * elem, 0);  // zero fill past the end
+      std::memcpy(chunk.data(), bytes + (r * cols + c0) * elem, n * elem);
+      a.chunks.push_back(filter_chunk(std::move(chunk), scratch, elem, a.filters, deflater ? &*deflater : nullptr));
+    }
+  return a;
+}
+
+ChunkFilters filters_for(DatasetRole role, SampleFormat format, Compression compression) {
+  switch (compression) {
+    case Compression::none: return {false, 0, true};
+    case Compression::compact: return {role != DatasetRole::states, kGzipLevel, true};
+    case Compression::fast: break;
+  }
+  // Chosen by measurement (docs/bundle-format.md, "Storage"): float32 audio saves 21-25 % for
+  // about 10 ms of CPU per 30 s signal even with the run-length strategy, a third of the whole
+  // record's budget, so it is stored plain; integer audio, labels and traces compress well and fast.
+  const ChunkFilters run_length{true, 1, true, true};
+  switch (role) {
+    case DatasetRole::pcg:
+    case DatasetRole::pcg_clean: return format == SampleFormat::float32 ? ChunkFilters{false, 0, true} : run_length;
+    case DatasetRole::states: return {false, 1, true, true};
+    case DatasetRole::hemodynamics:
+    case DatasetRole::table: return run_length;
+  }
+  return run_length;
+}
+
+EncodedArray encode_signal(const SiteArray<float>& signal, SampleFormat format, const ChunkFilters& filters,
+                           std::size_t chunk_cols) {
+  if (format == SampleFormat::float32)
+    return encode_array(signal.data.data(), signal.n_sites, signal.n_samples, false, StoredType::f32, chunk_cols,
+                        filters);
+  const std::int32_t full = format == SampleFormat::int16 ? kInt16FullScale : kInt24FullScale;
+  auto quantize = [full](float x) {
+    double v = std::isfinite(x) ? std::round(double(x) * full) : 0.0;
+    return static_cast<std::int32_t>(std::clamp(v, -double(full), double(full)));
+  };
+  if (format == SampleFormat::int16) {
+    std::vector<std::int16_t> q(signal.data.size());
+    for (std::size_t i = 0; i < q.size(); ++i) q[i] = static_cast<std::int16_t>(quantize(signal.data[i]));
+    return encode_array(q.data(), signal.n_sites, signal.n_samples, false, StoredType::i16, chunk_cols, filters);
+  }
+  std::vector<std::int32_t> q(signal.data.size());
+  for (std::size_t i = 0; i < q.size(); ++i) q[i] = quantize(signal.data[i]);
+  return encode_array(q.data(), signal.n_sites, signal.n_samples, false, StoredType::i32, chunk_cols, filters);
+}
+
+EncodedRecord encode_record(const Record& r, const RecordParts& parts, SampleFormat format, Compression compression) {
+  EncodedRecord e;
+  e.compression = compression;
+  e.format = format;
+  e.pcg = encode_signal(r.pcg, format, filters_for(DatasetRole::pcg, format, compression), kPcgChunkSamples);
+  if (parts.pcg_clean && !r.pcg_clean.data.empty()) {
+    e.has_pcg_clean = true;
+    e.pcg_clean = encode_signal(r.pcg_clean, format, filters_for(DatasetRole::pcg_clean, format, compression),
+                                kPcgChunkSamples);
+  }
+  if (parts.states && !r.states.data.empty()) {
+    e.has_states = true;
+    e.states = encode_array(r.states.data.data(), r.states.n_sites, r.states.n_samples, false, StoredType::u8,
+                            kPcgChunkSamples, filters_for(DatasetRole::states, format, compression));
+  }
+  const HemodynamicTraces& h = r.hemodynamics;
+  if (parts.hemodynamics && !h.names.empty()) {
+    e.has_hemodynamics = true;
+    const ChunkFilters f = filters_for(DatasetRole::hemodynamics, format, compression);
+    for (std::size_t c = 0; c < h.names.size() && c < h.data.n_sites; ++c)
+      e.hemodynamics.push_back(
+          encode_array(h.data.row(c), 1, h.data.n_samples, true, StoredType::f32, kPcgChunkSamples, f));
+  }
+  return e;
+}
+
+}  // namespace stethogen::bundle
