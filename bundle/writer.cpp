@@ -65,6 +65,11 @@ struct BundleWriter::Impl {
 
   std::string where(const std::string& object) const { return fmt::format("{}: {}", temp.string(), object); }
 
+  // A public (blinded) bundle must not reveal the state; its records read "withheld".
+  std::string state_name(const SubjectSpec& s) const {
+    return attributes.content == "public" ? std::string(kWithheldState) : std::string(name(s.state));
+  }
+
   // Deflate level of the tables (small; shuffle + deflate unless compression = "none").
   int table_level() const { return filters_for(DatasetRole::table, attributes.sample_format, attributes.compression).deflate_level; }
 
@@ -102,7 +107,7 @@ struct BundleWriter::Impl {
     h5::Id g = h5::make_group(records, id);
     h5::set_attr_u64(g, "record_index", s.record_index);
     h5::set_attr(g, "population", s.population);
-    h5::set_attr(g, "state", std::string(name(s.state)));
+    h5::set_attr(g, "state", state_name(s));
     h5::set_attr_f64(g, "exercise_intensity", s.exercise_intensity);
     h5::set_attr_f64(g, "severity", s.severity);
     h5::set_attr(g, "sensor", std::string(name(s.sensor)));
@@ -211,6 +216,7 @@ void BundleWriter::write_record(const Record& record, const EncodedRecord& encod
   }
   IndexRow row = index_row(record);
   row.record_id = id;
+  row.state = m.state_name(record.subject);
   m.index.push_back(std::move(row));
 }
 

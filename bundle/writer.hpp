@@ -79,6 +79,9 @@ inline constexpr int kGzipLevel = 4;
 // Half the fan-out of the chunk-index B-tree nodes (HDF5's istore_k; its default is 32).
 inline constexpr unsigned kChunkIndexK = 8;
 
+// The state a public bundle (content = "public", made by split) stores for every record.
+inline constexpr const char* kWithheldState = "withheld";
+
 // Full-scale integer of each integer storage: stored = round(value / scale), scale = 1 / full.
 inline constexpr std::int32_t kInt16FullScale = 32767;
 inline constexpr std::int32_t kInt24FullScale = 8388607;

@@ -52,7 +52,7 @@ Command add_generate(CLI::App& root) {
   app->add_option("-o,--output", a->output,
                   "output bundle (default: the recipe's dataset.output); '{shard}' is replaced by the shard, "
                   "e.g. part-{shard}.h5 -> part-2-of-3.h5");
-  app->add_option("--threads", a->threads, "worker threads (default: all cores); the output does not depend on it")
+  app->add_option("--threads", a->threads, "threads synthesising and encoding records (default: all cores; HDF5 writes on the first); the output does not depend on it")
       ->check(CLI::Range(1u, 4096u));
   app->add_option("--shard", a->shard,
                   "K/N: write only shard K of N (1-based, contiguous blocks of records); default from "

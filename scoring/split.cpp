@@ -22,8 +22,8 @@ constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
 
 // What a participant may see of a record: its signal, rate, sites, sensor and length.
 // Everything that reveals physiology, noise or truth is dropped or set to NaN / empty; the
-// state field, which the bundle always stores, reads "rest" for every public record, and the
-// list of stationary noise processes reads "withheld".
+// writer stores the state as "withheld" in a public bundle, and the list of stationary noise
+// processes reads "withheld".
 Record blinded(const Record& full, const std::string& public_id, std::uint64_t position) {
   Record r;
   r.subject.record_id = public_id;

@@ -91,7 +91,7 @@ def main():
     f = h5py.File(sys.argv[1], "r")
     a = f.attrs
     need(a["format"] == "stethogen-bundle", "format")
-    need(list(a["format_version"]) == [1, 0] and a["format_version"].dtype == np.int32, "format_version")
+    need(list(a["format_version"]) == [1, 1] and a["format_version"].dtype == np.int32, "format_version")
     for key in ("generator_version", "recipe_toml", "recipe_sha256", "sample_format", "content", "created_utc"):
         need(isinstance(a.get(key), str), f"root attribute {key} missing or not a string")
     need(a["seed"].dtype == np.uint64 and a["record_count"].dtype == np.uint64, "seed / record_count dtype")

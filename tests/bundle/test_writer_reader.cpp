@@ -43,7 +43,7 @@ TEST_CASE("a written record reads back unchanged", "[bundle]") {
   REQUIRE_FALSE(fs::exists(path.string() + ".partial"));
 
   BundleReader reader(path);
-  REQUIRE(reader.attributes().format_version == std::array<int, 2>{1, 0});
+  REQUIRE(reader.attributes().format_version == std::array<int, 2>{1, 1});
   REQUIRE(reader.attributes().recipe_sha256 == std::string(64, 'a'));
   REQUIRE(reader.record_ids() == std::vector<std::string>{"r000000", "r000001", "r000002"});
   const Record expected = test::make_test_record(1);

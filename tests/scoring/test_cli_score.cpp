@@ -125,6 +125,8 @@ def text(v): return v.decode() if isinstance(v, bytes) else str(v)
 out = {'content': text(pub.attrs['content']), 'recipe': text(pub.attrs['recipe_toml']),
        'public_ids': sorted(pub['records'].keys()),
        'public_parts': sorted(set(k for r in pub['records'].values() for k in r.keys())),
+       'states': sorted(set([text(row['state']) for row in pub['index'][:]] +
+                            [text(r.attrs['state']) for r in pub['records'].values()])),
        'index': [{'population': text(row['population']), 'snr': None if math.isnan(row['snr_db']) else 1,
                   'hr': None if math.isnan(row['heart_rate_bpm']) else 1, 'severity': float(row['severity']),
                   'intensity': float(row['exercise_intensity']), 'noise': text(row['noise_profile'])}
@@ -136,6 +138,7 @@ json.dump(out, sys.stdout)
   REQUIRE(seen["content"] == "public");
   REQUIRE(seen["recipe"] == "");
   REQUIRE(seen["public_parts"] == json::array({"pcg"}));
+  REQUIRE(seen["states"] == json::array({"withheld"}));
   for (const json& row : seen["index"]) {
     REQUIRE(row["population"] == "");
     REQUIRE(row["snr"].is_null());
