@@ -284,7 +284,6 @@ Id write_array(hid_t parent, const std::string& name, const void* data, hid_t me
   return ds;
 }
 
-namespace {
 hid_t file_type_of(StoredType t) {
   switch (t) {
     case StoredType::u8: return H5T_STD_U8LE;
@@ -294,7 +293,6 @@ hid_t file_type_of(StoredType t) {
   }
   return -1;
 }
-}  // namespace
 
 Id write_encoded(hid_t parent, const std::string& name, const EncodedArray& a) {
   std::vector<hsize_t> dims = a.one_d ? std::vector<hsize_t>{a.cols} : std::vector<hsize_t>{a.rows, a.cols};

@@ -98,6 +98,8 @@ Id write_array(hid_t parent, const std::string& name, const void* data, hid_t me
                const ArraySpec& spec);
 // Creates a dataset with the filters of `array` and stores its already-filtered chunks as they are
 // (H5Dwrite_chunk, all filters applied): the cheap half of writing, on the HDF5 thread.
+// The little-endian file type each stored type is written as.
+hid_t file_type_of(StoredType t);
 Id write_encoded(hid_t parent, const std::string& name, const EncodedArray& array);
 std::vector<std::uint64_t> shape(hid_t dataset);
 // Reads a whole dataset converted to mem_type; out must hold the element count.

@@ -47,15 +47,6 @@ hid_t mem_type(StoredType t) {
   }
   return -1;
 }
-hid_t file_type(StoredType t) {
-  switch (t) {
-    case StoredType::u8: return H5T_STD_U8LE;
-    case StoredType::i16: return H5T_STD_I16LE;
-    case StoredType::i32: return H5T_STD_I32LE;
-    case StoredType::f32: return H5T_IEEE_F32LE;
-  }
-  return -1;
-}
 
 // Writes `data` through HDF5's own filters and returns the stored chunk bytes, in chunk order.
 std::vector<std::vector<unsigned char>> hdf5_chunks(hid_t file, const std::string& name, const void* data,
@@ -67,7 +58,7 @@ std::vector<std::vector<unsigned char>> hdf5_chunks(hid_t file, const std::strin
   spec.chunk_cols = chunk_cols;
   spec.gzip_level = f.deflate_level;
   spec.shuffle = f.shuffle;
-  h5::Id ds = h5::write_array(file, name, data, mem_type(type), file_type(type), spec);
+  h5::Id ds = h5::write_array(file, name, data, mem_type(type), h5::file_type_of(type), spec);
   std::vector<std::vector<unsigned char>> chunks;
   const std::size_t cw = std::min(chunk_cols, cols);
   for (hsize_t r = 0; r < rows; ++r)
