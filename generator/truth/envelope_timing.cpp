@@ -6,6 +6,9 @@
 namespace stethogen::gen {
 namespace {
 
+constexpr double kSquareMargin = 1e-14;
+constexpr double kSmallestSafeSquare = 1e-290;
+
 // The first index holding the largest value. Four running maxima keep the comparisons
 // independent of each other (one running maximum is a chain of dependent compare-and-selects).
 std::size_t first_argmax(const double* x, std::size_t n) {
@@ -20,10 +23,11 @@ std::size_t first_argmax(const double* x, std::size_t n) {
   return k;
 }
 
-// The measurement on envelope values env(i), i < n, whose first maximum is at k.
-template <typename Envelope>
-SoundTiming measure(const Envelope& env, std::size_t n, std::size_t k, double t0_s, double rate_hz,
-                    double threshold_fraction) {
+// The measurement on envelope values env(i), i < n, whose first maximum is at k; below(i, t) is
+// env(i) < t.
+template <typename Envelope, typename Below>
+SoundTiming measure(const Envelope& env, const Below& below, std::size_t n, std::size_t k, double t0_s,
+                    double rate_hz, double threshold_fraction) {
   SoundTiming out;
   if (!(env(k) > 0)) return out;
 
@@ -44,18 +48,16 @@ SoundTiming measure(const Envelope& env, std::size_t n, std::size_t k, double t0
   // Walk outwards from the peak to the first samples below the threshold.
   double onset_pos = 0.0;
   for (std::size_t i = k; i > 0; --i) {
-    double lo = env(i - 1);
-    if (lo < threshold) {
-      double hi = env(i);
+    if (below(i - 1, threshold)) {
+      double lo = env(i - 1), hi = env(i);
       onset_pos = static_cast<double>(i - 1) + (threshold - lo) / (hi - lo);
       break;
     }
   }
   double offset_pos = static_cast<double>(n - 1);
   for (std::size_t i = k; i + 1 < n; ++i) {
-    double lo = env(i + 1);
-    if (lo < threshold) {
-      double hi = env(i);
+    if (below(i + 1, threshold)) {
+      double lo = env(i + 1), hi = env(i);
       offset_pos = static_cast<double>(i) + (hi - threshold) / (hi - lo);
       break;
     }
@@ -73,7 +75,8 @@ SoundTiming measure_envelope(const double* envelope, std::size_t n, double t0_s,
                              double threshold_fraction) {
   if (n == 0) return {};
   auto env = [envelope](std::size_t i) { return envelope[i]; };
-  return measure(env, n, first_argmax(envelope, n), t0_s, rate_hz, threshold_fraction);
+  auto below = [envelope](std::size_t i, double threshold) { return envelope[i] < threshold; };
+  return measure(env, below, n, first_argmax(envelope, n), t0_s, rate_hz, threshold_fraction);
 }
 
 SoundTiming measure_power(const double* power, std::size_t n, double t0_s, double rate_hz,
@@ -92,7 +95,18 @@ SoundTiming measure_power(const double* power, std::size_t n, double t0_s, doubl
       k = i;
       break;
     }
-  return measure(env, n, k, t0_s, rate_hz, threshold_fraction);
+  // sqrt(power) < threshold without the root for all but a few samples: the rounded root is
+  // monotone in the power, so powers clearly below threshold^2 are below and powers clearly
+  // above are not (margin 1e-14, far above the roundings of the square and the root); only a
+  // power within the margin takes the root. Same answers as comparing every root.
+  auto is_below = [power, env](std::size_t i, double threshold) {
+    const double square = threshold * threshold;
+    if (!(square >= kSmallestSafeSquare)) return env(i) < threshold;  // the margins would underflow
+    if (power[i] < square * (1.0 - kSquareMargin)) return true;
+    if (power[i] > square * (1.0 + kSquareMargin)) return false;
+    return env(i) < threshold;
+  };
+  return measure(env, is_below, n, k, t0_s, rate_hz, threshold_fraction);
 }
 
 }  // namespace stethogen::gen
