@@ -9,15 +9,21 @@ namespace {
 constexpr double kSquareMargin = 1e-14;
 constexpr double kSmallestSafeSquare = 1e-290;
 
-// The first index holding the largest value. Four running maxima keep the comparisons
-// independent of each other (one running maximum is a chain of dependent compare-and-selects).
-std::size_t first_argmax(const double* x, std::size_t n) {
+// The largest value (NaNs aside). Four running maxima keep the comparisons independent of each
+// other (one running maximum is a chain of dependent compare-and-selects).
+double largest_of(const double* x, std::size_t n) {
   double lane[4] = {x[0], x[0], x[0], x[0]};
   std::size_t i = 0;
   for (; i + 4 <= n; i += 4)
     for (std::size_t j = 0; j < 4; ++j) lane[j] = x[i + j] > lane[j] ? x[i + j] : lane[j];
   double largest = std::max(std::max(lane[0], lane[1]), std::max(lane[2], lane[3]));
   for (; i < n; ++i) largest = x[i] > largest ? x[i] : largest;
+  return largest;
+}
+
+// The first index holding the largest value.
+std::size_t first_argmax(const double* x, std::size_t n) {
+  const double largest = largest_of(x, n);
   std::size_t k = 0;
   while (k + 1 < n && x[k] != largest) ++k;  // bounded: a NaN never equals
   return k;
@@ -79,19 +85,24 @@ SoundTiming measure_envelope(const double* envelope, std::size_t n, double t0_s,
   return measure(env, below, n, first_argmax(envelope, n), t0_s, rate_hz, threshold_fraction);
 }
 
-SoundTiming measure_power(const double* power, std::size_t n, double t0_s, double rate_hz,
-                          double threshold_fraction) {
-  if (n == 0) return {};
-  auto env = [power](std::size_t i) { return std::sqrt(power[i]); };
+namespace {
+
+// measure_power on power(i), i < n, whose largest value is largest (the first maximum of the
+// power; see measure_power for why the root's first maximum can lie before it).
+template <typename Power>
+SoundTiming measure_power_at(const Power& power, std::size_t n, double largest, double t0_s, double rate_hz,
+                             double threshold_fraction) {
+  auto env = [&power](std::size_t i) { return std::sqrt(power(i)); };
+  std::size_t k = 0;
+  while (k + 1 < n && power(k) != largest) ++k;  // bounded: a NaN never equals
   // The first maximum of sqrt(power): sqrt is monotone, but distinct powers can round to the
   // same root, so an earlier sample whose root equals the largest root comes first. Such a
   // power lies above (the next smaller root)^2, with a margin for the rounding of the square.
-  std::size_t k = first_argmax(power, n);
   const double root = env(k);
   const double below = std::nextafter(root, 0.0);
   const double floor_power = below * below * (1.0 - 1e-15);
   for (std::size_t i = 0; i < k; ++i)
-    if (power[i] >= floor_power && env(i) == root) {
+    if (power(i) >= floor_power && env(i) == root) {
       k = i;
       break;
     }
@@ -99,14 +110,31 @@ SoundTiming measure_power(const double* power, std::size_t n, double t0_s, doubl
   // monotone in the power, so powers clearly below threshold^2 are below and powers clearly
   // above are not (margin 1e-14, far above the roundings of the square and the root); only a
   // power within the margin takes the root. Same answers as comparing every root.
-  auto is_below = [power, env](std::size_t i, double threshold) {
+  auto is_below = [&power, env](std::size_t i, double threshold) {
     const double square = threshold * threshold;
     if (!(square >= kSmallestSafeSquare)) return env(i) < threshold;  // the margins would underflow
-    if (power[i] < square * (1.0 - kSquareMargin)) return true;
-    if (power[i] > square * (1.0 + kSquareMargin)) return false;
+    const double p = power(i);
+    if (p < square * (1.0 - kSquareMargin)) return true;
+    if (p > square * (1.0 + kSquareMargin)) return false;
     return env(i) < threshold;
   };
   return measure(env, is_below, n, k, t0_s, rate_hz, threshold_fraction);
+}
+
+}  // namespace
+
+SoundTiming measure_power(const double* power, std::size_t n, double t0_s, double rate_hz,
+                          double threshold_fraction) {
+  if (n == 0) return {};
+  auto at = [power](std::size_t i) { return power[i]; };
+  return measure_power_at(at, n, largest_of(power, n), t0_s, rate_hz, threshold_fraction);
+}
+
+SoundTiming measure_analytic(const std::complex<double>* z, std::size_t lo, std::size_t n, double largest_power,
+                             double t0_s, double rate_hz, double threshold_fraction) {
+  if (n == 0) return {};
+  auto at = [z, lo](std::size_t i) { return i < lo ? 0.0 : std::norm(z[i]); };
+  return measure_power_at(at, n, largest_power, t0_s, rate_hz, threshold_fraction);
 }
 
 }  // namespace stethogen::gen
