@@ -89,11 +89,12 @@ namespace {
 
 // measure_power on power(i), i < n, whose largest value is largest (the first maximum of the
 // power; see measure_power for why the root's first maximum can lie before it).
+// Powers before first are zero and, unless largest is 0, need no search.
 template <typename Power>
-SoundTiming measure_power_at(const Power& power, std::size_t n, double largest, double t0_s, double rate_hz,
-                             double threshold_fraction) {
+SoundTiming measure_power_at(const Power& power, std::size_t n, std::size_t first, double largest, double t0_s,
+                             double rate_hz, double threshold_fraction) {
   auto env = [&power](std::size_t i) { return std::sqrt(power(i)); };
-  std::size_t k = 0;
+  std::size_t k = largest > 0 ? first : 0;
   while (k + 1 < n && power(k) != largest) ++k;  // bounded: a NaN never equals
   // The first maximum of sqrt(power): sqrt is monotone, but distinct powers can round to the
   // same root, so an earlier sample whose root equals the largest root comes first. Such a
@@ -101,7 +102,7 @@ SoundTiming measure_power_at(const Power& power, std::size_t n, double largest, 
   const double root = env(k);
   const double below = std::nextafter(root, 0.0);
   const double floor_power = below * below * (1.0 - 1e-15);
-  for (std::size_t i = 0; i < k; ++i)
+  for (std::size_t i = largest > 0 ? first : 0; i < k; ++i)
     if (power(i) >= floor_power && env(i) == root) {
       k = i;
       break;
@@ -127,14 +128,14 @@ SoundTiming measure_power(const double* power, std::size_t n, double t0_s, doubl
                           double threshold_fraction) {
   if (n == 0) return {};
   auto at = [power](std::size_t i) { return power[i]; };
-  return measure_power_at(at, n, largest_of(power, n), t0_s, rate_hz, threshold_fraction);
+  return measure_power_at(at, n, 0, largest_of(power, n), t0_s, rate_hz, threshold_fraction);
 }
 
 SoundTiming measure_analytic(const std::complex<double>* z, std::size_t lo, std::size_t n, double largest_power,
                              double t0_s, double rate_hz, double threshold_fraction) {
   if (n == 0) return {};
   auto at = [z, lo](std::size_t i) { return i < lo ? 0.0 : std::norm(z[i]); };
-  return measure_power_at(at, n, largest_power, t0_s, rate_hz, threshold_fraction);
+  return measure_power_at(at, n, std::min(lo, n), largest_power, t0_s, rate_hz, threshold_fraction);
 }
 
 }  // namespace stethogen::gen
