@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <cstring>
 
 namespace stethogen::gen {
 namespace {
@@ -89,21 +90,22 @@ namespace {
 
 // measure_power on power(i), i < n, whose largest value is largest (the first maximum of the
 // power; see measure_power for why the root's first maximum can lie before it).
-// Powers before first are zero and, unless largest is 0, need no search.
-template <typename Power>
-SoundTiming measure_power_at(const Power& power, std::size_t n, std::size_t first, double largest, double t0_s,
-                             double rate_hz, double threshold_fraction) {
+// Powers before first are zero and, unless largest is 0, need no search. at_least(from, to,
+// level) is the first i in [from, to) with power(i) >= level, or to.
+template <typename Power, typename AtLeast>
+SoundTiming measure_power_at(const Power& power, const AtLeast& at_least, std::size_t n, std::size_t first,
+                             double largest, double t0_s, double rate_hz, double threshold_fraction) {
   auto env = [&power](std::size_t i) { return std::sqrt(power(i)); };
-  std::size_t k = largest > 0 ? first : 0;
-  while (k + 1 < n && power(k) != largest) ++k;  // bounded: a NaN never equals
+  // The first sample at the largest power (>= is == there; a NaN is neither), else the last.
+  std::size_t k = at_least(largest > 0 ? first : 0, n - 1, largest);
   // The first maximum of sqrt(power): sqrt is monotone, but distinct powers can round to the
   // same root, so an earlier sample whose root equals the largest root comes first. Such a
   // power lies above (the next smaller root)^2, with a margin for the rounding of the square.
   const double root = env(k);
   const double below = std::nextafter(root, 0.0);
   const double floor_power = below * below * (1.0 - 1e-15);
-  for (std::size_t i = largest > 0 ? first : 0; i < k; ++i)
-    if (power(i) >= floor_power && env(i) == root) {
+  for (std::size_t i = at_least(largest > 0 ? first : 0, k, floor_power); i < k; i = at_least(i + 1, k, floor_power))
+    if (env(i) == root) {
       k = i;
       break;
     }
@@ -128,14 +130,39 @@ SoundTiming measure_power(const double* power, std::size_t n, double t0_s, doubl
                           double threshold_fraction) {
   if (n == 0) return {};
   auto at = [power](std::size_t i) { return power[i]; };
-  return measure_power_at(at, n, 0, largest_of(power, n), t0_s, rate_hz, threshold_fraction);
+  auto at_least = [power](std::size_t from, std::size_t to, double level) {
+    while (from < to && !(power[from] >= level)) ++from;
+    return from;
+  };
+  return measure_power_at(at, at_least, n, 0, largest_of(power, n), t0_s, rate_hz, threshold_fraction);
 }
 
 SoundTiming measure_analytic(const std::complex<double>* z, std::size_t lo, std::size_t n, double largest_power,
                              double t0_s, double rate_hz, double threshold_fraction) {
   if (n == 0) return {};
+  lo = std::min(lo, n);
   auto at = [z, lo](std::size_t i) { return i < lo ? 0.0 : std::norm(z[i]); };
-  return measure_power_at(at, n, std::min(lo, n), largest_power, t0_s, rate_hz, threshold_fraction);
+  // Two norms per vector (the same products and sum as std::norm).
+  auto at_least = [z, lo](std::size_t from, std::size_t to, double level) {
+    using Pair = double __attribute__((vector_size(16)));
+    using PairIndex = long long __attribute__((vector_size(16)));
+    if (from >= to) return to;
+    if (from < lo) {
+      if (level <= 0) return from;  // the zeros before lo
+      from = lo;
+    }
+    for (; from + 2 <= to; from += 2) {
+      Pair a, b;
+      std::memcpy(&a, z + from, sizeof a);
+      std::memcpy(&b, z + from + 1, sizeof b);
+      const Pair re = __builtin_shuffle(a, b, PairIndex{0, 2}), im = __builtin_shuffle(a, b, PairIndex{1, 3});
+      const Pair p = re * re + im * im;
+      if (p[0] >= level) return from;
+      if (p[1] >= level) return from + 1;
+    }
+    return from < to && std::norm(z[from]) >= level ? from : to;
+  };
+  return measure_power_at(at, at_least, n, lo, largest_power, t0_s, rate_hz, threshold_fraction);
 }
 
 }  // namespace stethogen::gen
