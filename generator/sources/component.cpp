@@ -105,6 +105,9 @@ void decaying_rotations(std::complex<double> carrier, double step, const double*
   rotations<1>(carrier, step, chirp, k, n, re, im);
 }
 
+// Two doubles in one vector register (GCC vector extension: packed SSE2 on x86-64).
+using Pair = double __attribute__((vector_size(16)));
+
 // Plain complex product: std::complex's operator* adds a NaN-recovery branch (C99 Annex G)
 // that the finite values here never need.
 std::complex<double> multiply(std::complex<double> a, std::complex<double> b) {
@@ -149,9 +152,19 @@ void SoundComponent::render(double t_first_s, double rate_hz, std::size_t n, dou
   }
 
   double step_re[kTogether][kBlock], step_im[kTogether][kBlock], chirp_run[kTogether][kBlock];
+  // One lone block of a round, advanced on its own (scalars, kept in registers).
+  struct Single {
+    std::size_t b = 0, len = 0;
+    double tail = 0;
+    std::complex<double> phasor;
+  };
   while (i < n) {
+    // With fewer than kTogether full blocks left, the last, partial block runs beside them
+    // instead of after them (the same anchors, so the same values): its recurrence overlaps
+    // theirs instead of waiting on one chain.
     const std::size_t full = std::min(kTogether, (n - i) / kBlock);
-    const std::size_t blocks = std::max<std::size_t>(full, 1), len = full > 0 ? kBlock : n - i;
+    const std::size_t part = full < kTogether ? n - i - full * kBlock : 0;
+    const std::size_t blocks = full + (part > 0 ? 1 : 0), len = full > 0 ? kBlock : part;
     double tail[kTogether], chirp[kTogether];
     std::complex<double> phasor[kTogether];
     for (std::size_t b = 0; b < blocks; ++b) {
@@ -160,23 +173,62 @@ void SoundComponent::render(double t_first_s, double rate_hz, std::size_t n, dou
       chirp[b] = std::exp(-t / chirp_tau_s);
       phasor[b] = std::polar(1.0, phase_at(t, chirp[b]));
     }
-    // Per-sample rotations carrier * exp(i chirp_step chirp): independent of each other.
+    // Per-sample rotations carrier * exp(i chirp_step chirp): independent of each other (the
+    // partial block's values past its end are not used).
     for (std::size_t j = 0; j < len; ++j)
       for (std::size_t b = 0; b < blocks; ++b) {
         chirp_run[b][j] = chirp[b];
         chirp[b] *= chirp_decay;
       }
     for (std::size_t b = 0; b < blocks; ++b)
-      decaying_rotations(carrier, chirp_step, chirp_run[b], len, step_re[b], step_im[b]);
-    for (std::size_t j = 0; j < len; ++j)
-      for (std::size_t b = 0; b < blocks; ++b) {
-        const std::size_t k = i + b * kBlock + j;
-        const double r = time_at(k) * inv_rise;
-        out[k] = (scale * r * r * tail[b]) * phasor[b];
-        phasor[b] = multiply(phasor[b], {step_re[b][j], step_im[b][j]});
-        tail[b] *= decay;
+      decaying_rotations(carrier, chirp_step, chirp_run[b], b < full ? kBlock : part, step_re[b], step_im[b]);
+    // Full blocks 2p and 2p + 1 in the two lanes of a vector (pair p); a full block left over
+    // and the partial block on their own: the same operations per block as a scalar loop over
+    // it, so the same values.
+    const std::size_t pairs = full / 2;
+    Pair pre[kTogether / 2], pim[kTogether / 2], ptail[kTogether / 2], pindex[kTogether / 2];
+    for (std::size_t p = 0; p < pairs; ++p) {
+      pre[p] = Pair{phasor[2 * p].real(), phasor[2 * p + 1].real()};
+      pim[p] = Pair{phasor[2 * p].imag(), phasor[2 * p + 1].imag()};
+      ptail[p] = Pair{tail[2 * p], tail[2 * p + 1]};
+      pindex[p] = Pair{static_cast<double>(i + 2 * p * kBlock), static_cast<double>(i + (2 * p + 1) * kBlock)};
+    }
+    Single one, two;
+    std::size_t singles = 0;
+    auto add_single = [&](std::size_t b, std::size_t block_len) {
+      (singles == 0 ? one : two) = Single{b, block_len, tail[b], phasor[b]};
+      ++singles;
+    };
+    if (full % 2 == 1) add_single(full - 1, kBlock);
+    if (part > 0) add_single(full, part);
+    auto advance = [&](Single& q, std::size_t j) {
+      const std::size_t k = i + q.b * kBlock + j;
+      const double r = time_at(k) * inv_rise;
+      out[k] = (scale * r * r * q.tail) * q.phasor;
+      q.phasor = multiply(q.phasor, {step_re[q.b][j], step_im[q.b][j]});
+      q.tail *= decay;
+    };
+    for (std::size_t j = 0; j < len; ++j) {
+#pragma GCC unroll 2
+      for (std::size_t p = 0; p < pairs; ++p) {
+        const Pair r = (t_first_s + pindex[p] * h - start_s) * inv_rise;  // time_at, per lane
+        const Pair a = scale * r * r * ptail[p];
+        const Pair re = a * pre[p], im = a * pim[p];
+        const std::size_t k = i + 2 * p * kBlock + j;
+        out[k] = {re[0], im[0]};
+        out[k + kBlock] = {re[1], im[1]};
+        const Pair step_r = {step_re[2 * p][j], step_re[2 * p + 1][j]};
+        const Pair step_i = {step_im[2 * p][j], step_im[2 * p + 1][j]};
+        const Pair next_re = pre[p] * step_r - pim[p] * step_i;  // multiply(), per lane
+        pim[p] = pre[p] * step_i + pim[p] * step_r;
+        pre[p] = next_re;
+        ptail[p] *= decay;
+        pindex[p] += 1.0;
       }
-    i += blocks * len;
+      if (singles > 0 && j < one.len) advance(one, j);
+      if (singles > 1 && j < two.len) advance(two, j);
+    }
+    i += full * kBlock + part;
   }
 }
 

@@ -114,24 +114,68 @@ using Pair = double __attribute__((vector_size(16)));
 template <typename T> struct Lanes { using type = T; };
 template <> struct Lanes<std::complex<double>> { using type = Pair; };
 
+// How a section's recurrence is evaluated. First-order sections (b2 = a2 = 0, the Butterworth
+// first-order designs) skip the second state, whose value would be exactly zero. Those with
+// b1 = b0 (low-pass) or b1 = -b0 (high-pass) form b0 x once, b1 x being it or its negation
+// exactly; the high-pass keeps its state negated, w = -z1, so that y = b0 x - w and
+// w' = b0 x + a1 y need no negation ((-t) - u = -(t + u) exactly). Every form gives the values
+// of the general one.
+enum class Form { general, first_order, low_pass, high_pass };
+
+Form form_of(const Biquad& s) {
+  if (s.b2 != 0.0 || s.a2 != 0.0) return Form::general;
+  if (s.b1 == s.b0) return Form::low_pass;
+  if (s.b1 == -s.b0) return Form::high_pass;
+  return Form::first_order;
+}
+// The state as a form keeps it, and back (negation is exact).
+template <typename V>
+V to_kept(Form form, V z1) { return form == Form::high_pass ? -z1 : z1; }
+
+template <typename V>
+V section_step(Form form, double b0, double b1, double b2, double a1, double a2, V x, V& z1, V& z2) {
+  switch (form) {
+    case Form::low_pass: {
+      const V t = b0 * x, y = t + z1;
+      z1 = t - a1 * y;
+      return y;
+    }
+    case Form::high_pass: {  // z1 holds -z1
+      const V t = b0 * x, y = t - z1;
+      z1 = t + a1 * y;
+      return y;
+    }
+    case Form::first_order: {
+      const V y = b0 * x + z1;
+      z1 = b1 * x - a1 * y;
+      return y;
+    }
+    case Form::general: break;
+  }
+  const V y = b0 * x + z1;
+  z1 = b1 * x - a1 * y + z2;
+  z2 = b2 * x - a2 * y;
+  return y;
+}
+
 // All N sections per sample, coefficients and states in registers: the sections' recurrences
 // overlap instead of running one after the other, and the buffer is read and written once.
-// First-order sections (b2 = a2 = 0, the Butterworth first-order designs) skip the second
-// state, whose value would be exactly zero. Per sample and section the arithmetic is that of
-// by_section, in the same order, so both give the same values.
+// Per sample and section the values are those of by_section (section_step computes the same
+// values in every form).
 template <typename T, std::size_t N>
 void fused(const FilterCascade& cascade, T* data, std::size_t n, T* state) {
   using V = typename Lanes<T>::type;
   static_assert(sizeof(V) == sizeof(T));
   double b0[N], b1[N], b2[N], a1[N], a2[N];
-  bool first_order[N];
+  Form form[N];
   V z1[N], z2[N];
   for (std::size_t k = 0; k < N; ++k) {
     const Biquad& s = cascade.sections[k];
     b0[k] = s.b0, b1[k] = s.b1, b2[k] = s.b2, a1[k] = s.a1, a2[k] = s.a2;
-    first_order[k] = s.b2 == 0.0 && s.a2 == 0.0;
+    form[k] = form_of(s);
     std::memcpy(&z1[k], &state[2 * k], sizeof(V));
     std::memcpy(&z2[k], &state[2 * k + 1], sizeof(V));
+    z1[k] = to_kept(form[k], z1[k]);
   }
   const double gain = cascade.gain;
   const bool scaled = gain != 1.0;
@@ -139,20 +183,12 @@ void fused(const FilterCascade& cascade, T* data, std::size_t n, T* state) {
     V x;
     std::memcpy(&x, &data[i], sizeof(V));
 #pragma GCC unroll 8
-    for (std::size_t k = 0; k < N; ++k) {
-      V y = b0[k] * x + z1[k];
-      if (first_order[k]) {
-        z1[k] = b1[k] * x - a1[k] * y;
-      } else {
-        z1[k] = b1[k] * x - a1[k] * y + z2[k];
-        z2[k] = b2[k] * x - a2[k] * y;
-      }
-      x = y;
-    }
+    for (std::size_t k = 0; k < N; ++k) x = section_step(form[k], b0[k], b1[k], b2[k], a1[k], a2[k], x, z1[k], z2[k]);
     if (scaled) x = x * gain;
     std::memcpy(static_cast<void*>(&data[i]), &x, sizeof(V));
   }
   for (std::size_t k = 0; k < N; ++k) {
+    z1[k] = to_kept(form[k], z1[k]);
     std::memcpy(static_cast<void*>(&state[2 * k]), &z1[k], sizeof(V));
     std::memcpy(static_cast<void*>(&state[2 * k + 1]), &z2[k], sizeof(V));
   }
@@ -164,15 +200,16 @@ template <std::size_t N, std::size_t C>
 void fused_lanes(const FilterCascade& cascade, std::complex<double>* const* data, std::size_t n,
                  std::complex<double>* const* state) {
   double b0[N], b1[N], b2[N], a1[N], a2[N];
-  bool first_order[N];
+  Form form[N];
   Pair z1[C][N], z2[C][N];
   for (std::size_t k = 0; k < N; ++k) {
     const Biquad& s = cascade.sections[k];
     b0[k] = s.b0, b1[k] = s.b1, b2[k] = s.b2, a1[k] = s.a1, a2[k] = s.a2;
-    first_order[k] = s.b2 == 0.0 && s.a2 == 0.0;
+    form[k] = form_of(s);
     for (std::size_t c = 0; c < C; ++c) {
       std::memcpy(&z1[c][k], &state[c][2 * k], sizeof(Pair));
       std::memcpy(&z2[c][k], &state[c][2 * k + 1], sizeof(Pair));
+      z1[c][k] = to_kept(form[k], z1[c][k]);
     }
   }
   const double gain = cascade.gain;
@@ -184,16 +221,8 @@ void fused_lanes(const FilterCascade& cascade, std::complex<double>* const* data
 #pragma GCC unroll 8
     for (std::size_t k = 0; k < N; ++k) {
 #pragma GCC unroll 4
-      for (std::size_t c = 0; c < C; ++c) {
-        Pair y = b0[k] * x[c] + z1[c][k];
-        if (first_order[k]) {
-          z1[c][k] = b1[k] * x[c] - a1[k] * y;
-        } else {
-          z1[c][k] = b1[k] * x[c] - a1[k] * y + z2[c][k];
-          z2[c][k] = b2[k] * x[c] - a2[k] * y;
-        }
-        x[c] = y;
-      }
+      for (std::size_t c = 0; c < C; ++c)
+        x[c] = section_step(form[k], b0[k], b1[k], b2[k], a1[k], a2[k], x[c], z1[c][k], z2[c][k]);
     }
 #pragma GCC unroll 4
     for (std::size_t c = 0; c < C; ++c) {
@@ -203,6 +232,7 @@ void fused_lanes(const FilterCascade& cascade, std::complex<double>* const* data
   }
   for (std::size_t c = 0; c < C; ++c)
     for (std::size_t k = 0; k < N; ++k) {
+      z1[c][k] = to_kept(form[k], z1[c][k]);
       std::memcpy(static_cast<void*>(&state[c][2 * k]), &z1[c][k], sizeof(Pair));
       std::memcpy(static_cast<void*>(&state[c][2 * k + 1]), &z2[c][k], sizeof(Pair));
     }

@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <cmath>
 #include <complex>
+#include <cstring>
 #include <map>
 
 namespace stethogen::gen {
@@ -62,6 +63,41 @@ struct SiteSegment {
   std::vector<SoundTiming> member_timing;
 };
 
+// Two doubles in one vector register (GCC vector extension: packed SSE2 on x86-64).
+using Pair = double __attribute__((vector_size(16)));
+using PairIndex = long long __attribute__((vector_size(16)));
+
+// The largest std::norm(z[i]) for lo <= i < hi (0 if none), and with Add sum[i] += z[i] in the
+// same pass: two samples per vector, two running maxima.
+template <bool Add>
+double largest_power(const Complex* z, Complex* sum, std::size_t lo, std::size_t hi) {
+  Pair m[2] = {{0.0, 0.0}, {0.0, 0.0}};
+  std::size_t i = lo;
+  for (; i + 4 <= hi; i += 4) {
+    Pair v[4];
+    std::memcpy(v, z + i, sizeof v);
+    if constexpr (Add) {
+      Pair acc[4];
+      std::memcpy(acc, sum + i, sizeof acc);
+      for (int j = 0; j < 4; ++j) acc[j] += v[j];
+      std::memcpy(static_cast<void*>(sum + i), acc, sizeof acc);
+    }
+    for (int h = 0; h < 2; ++h) {
+      const Pair re = __builtin_shuffle(v[2 * h], v[2 * h + 1], PairIndex{0, 2});
+      const Pair im = __builtin_shuffle(v[2 * h], v[2 * h + 1], PairIndex{1, 3});
+      const Pair p = re * re + im * im;  // std::norm, per lane
+      m[h] = p > m[h] ? p : m[h];
+    }
+  }
+  double largest = std::max(std::max(m[0][0], m[0][1]), std::max(m[1][0], m[1][1]));
+  for (; i < hi; ++i) {
+    if constexpr (Add) sum[i] += z[i];
+    const double p = std::norm(z[i]);
+    largest = p > largest ? p : largest;
+  }
+  return largest;
+}
+
 bool same_cascade(const FilterCascade& a, const FilterCascade& b) {
   if (a.gain != b.gain || a.sections.size() != b.sections.size()) return false;
   for (std::size_t k = 0; k < a.sections.size(); ++k) {
@@ -86,7 +122,6 @@ Rendering render_sites(const std::vector<SoundComponent>& components, const std:
   // filters run together (filter_continue_together); every site's values are computed exactly
   // as if it were alone.
   std::vector<SiteSegment> seg(n_sites);
-  std::vector<double> power;  // |z|^2: the envelope's root only where measure_power reads it
   std::vector<Complex*> data(n_sites), state(n_sites);
   std::vector<std::size_t> count(n_sites);
   // One cascade for every site (plan_transmission); otherwise each site is filtered alone.
@@ -160,15 +195,11 @@ Rendering render_sites(const std::vector<SoundComponent>& components, const std:
         SiteSegment& q = seg[s];
         const std::size_t lo = q.spans[k].first;
         for (std::size_t i = 0; i < q.tail_state.size(); ++i) q.tail_state[i] += q.member_state[i];
-        power.resize(q.hi_max);
-        std::fill(power.begin(), power.begin() + static_cast<std::ptrdiff_t>(lo), 0.0);
-        for (std::size_t i = lo; i < q.hi_max; ++i) {
-          power[i] = std::norm(q.member[i]);
-          q.sum[i] += q.member[i];
-        }
-        // The member's site timing on [0, hi_max): its filtered tail beyond stays far below the
-        // 10 % threshold, so peak and crossings are those of the whole filtered component.
-        SoundTiming t = measure_power(power.data(), q.hi_max, q.t_first_s, fs, kEnvelopeThreshold);
+        const double largest = largest_power<true>(q.member.data(), q.sum.data(), lo, q.hi_max);
+        // The member's site timing on [0, hi_max) (zero before lo): its filtered tail beyond
+        // stays far below the 10 % threshold, so peak and crossings are those of the whole
+        // filtered component.
+        SoundTiming t = measure_analytic(q.member.data(), lo, q.hi_max, largest, q.t_first_s, fs, kEnvelopeThreshold);
         out.component_timing[m][s] = t;
         q.member_timing.push_back(t);
       }
@@ -182,10 +213,9 @@ Rendering render_sites(const std::vector<SoundComponent>& components, const std:
     filter_sites();
     for (std::size_t s = 0; s < n_sites; ++s) {
       SiteSegment& q = seg[s];
-      power.resize(q.len);
-      for (std::size_t i = 0; i < q.len; ++i) power[i] = std::norm(q.sum[i]);
-      out.group_timing[g][s] =
-          combine(q.member_timing, measure_power(power.data(), q.len, q.t_first_s, fs, kEnvelopeThreshold));
+      const double largest = largest_power<false>(q.sum.data(), nullptr, 0, q.len);
+      out.group_timing[g][s] = combine(
+          q.member_timing, measure_analytic(q.sum.data(), 0, q.len, largest, q.t_first_s, fs, kEnvelopeThreshold));
       // Add the real part where the segment overlaps the record.
       float* row = out.clean.row(s);
       const std::int64_t last = q.first + static_cast<std::int64_t>(q.len) - 1;

@@ -4,6 +4,7 @@
 #pragma once
 
 #include <cmath>
+#include <complex>
 #include <cstddef>
 
 namespace stethogen::gen {
@@ -22,5 +23,9 @@ SoundTiming measure_envelope(const double* envelope, std::size_t n, double t0_s,
 // the samples the measurement reads, not for the whole sound.
 SoundTiming measure_power(const double* power, std::size_t n, double t0_s, double rate_hz,
                           double threshold_fraction);
+// measure_power on std::norm(z[i]) for lo <= i < n and 0 before lo, the power formed only where
+// the measurement reads it; largest_power is its largest value (the caller's pass over z knows it).
+SoundTiming measure_analytic(const std::complex<double>* z, std::size_t lo, std::size_t n, double largest_power,
+                             double t0_s, double rate_hz, double threshold_fraction);
 
 }  // namespace stethogen::gen

@@ -58,26 +58,29 @@ std::vector<double> decimation_taps(int factor, double frac) {
   return g;
 }
 
-// out[c] = sum over j < n of taps[j] x[c][j], for C signals at once: each pair of taps is
-// loaded once for all of them, and the C sums (pairs of lanes in vector registers; GCC vector
-// extension, packed SSE2 on x86-64) do not wait on each other.
+// out[c] = sum over j < n of taps[j] x[c][j], for C signals at once: each group of four taps is
+// loaded once for all of them, and the C sums (four float lanes per vector register; GCC vector
+// extension, packed SSE on x86-64) do not wait on each other. Single precision: the traces are
+// stored as float32, and the sums of 161 products stay within a few float32 roundings of the
+// double-precision filter (tests/generator/test_truth.cpp checks against scipy).
 template <std::size_t C>
-void dot_all(const double* taps, const double* const* x, std::size_t n, double* out) {
-  using Pair = double __attribute__((vector_size(16)));
-  Pair acc[C] = {};
+void dot_all(const float* taps, const float* const* x, std::size_t n, float* out) {
+  using Quad = float __attribute__((vector_size(16)));
+  Quad acc[C] = {};
   std::size_t j = 0;
-  for (; j + 2 <= n; j += 2) {
-    Pair t;
-    std::memcpy(&t, taps + j, sizeof(Pair));
+  for (; j + 4 <= n; j += 4) {
+    Quad t;
+    std::memcpy(&t, taps + j, sizeof(Quad));
     for (std::size_t c = 0; c < C; ++c) {
-      Pair v;
-      std::memcpy(&v, x[c] + j, sizeof(Pair));
+      Quad v;
+      std::memcpy(&v, x[c] + j, sizeof(Quad));
       acc[c] += t * v;
     }
   }
   for (std::size_t c = 0; c < C; ++c) {
-    out[c] = acc[c][0] + acc[c][1];
-    if (j < n) out[c] += taps[j] * x[c][j];
+    float sum = (acc[c][0] + acc[c][1]) + (acc[c][2] + acc[c][3]);
+    for (std::size_t r = j; r < n; ++r) sum += taps[r] * x[c][r];
+    out[c] = sum;
   }
 }
 
@@ -101,19 +104,22 @@ HemodynamicTraces hemodynamic_traces(const CirculationResult& circulation, doubl
   // factor: the same fractional phase for every output, so one set of taps serves them all.
   const double start = -s.t0_s * s.rate_hz;
   const double base = std::floor(start);
-  const std::vector<double> taps = n_out > 0 ? decimation_taps(factor, start - base) : std::vector<double>{};
+  const std::vector<double> taps_exact = n_out > 0 ? decimation_taps(factor, start - base) : std::vector<double>{};
+  const std::vector<float> taps(taps_exact.begin(), taps_exact.end());
   const auto half = static_cast<std::int64_t>(kHalfLengthPerFactor * factor);
   const auto n_in = static_cast<std::int64_t>(s.size());
-  const double* x[n_channels];
+  std::vector<float> single[n_channels];  // the series in single precision, for dot_all
+  const float* x[n_channels];
   for (std::size_t c = 0; c < n_channels; ++c) {
     out.names.emplace_back(kChannels[c].name);
     out.units.emplace_back(kChannels[c].unit);
     const std::vector<double>& trace = s.*(kChannels[c].trace);
     if (n_out > 0 && trace.size() != s.size()) throw RuntimeFailure("hemodynamic traces: series of unequal length");
-    x[c] = trace.data();
+    single[c].assign(trace.begin(), trace.end());
+    x[c] = single[c].data();
   }
-  const double* window[n_channels];
-  double value[n_channels];
+  const float* window[n_channels];
+  float value[n_channels];
   for (std::size_t k = 0; k < n_out; ++k) {
     // Taps over input samples first .. first + taps - 1; those outside the series count as 0.
     const std::int64_t first = static_cast<std::int64_t>(base) + static_cast<std::int64_t>(k) * factor - half;
@@ -121,7 +127,7 @@ HemodynamicTraces hemodynamic_traces(const CirculationResult& circulation, doubl
     const std::int64_t hi = std::min<std::int64_t>(static_cast<std::int64_t>(taps.size()), n_in - first);
     for (std::size_t c = 0; c < n_channels; ++c) window[c] = x[c] + first + lo;
     dot_all<n_channels>(taps.data() + lo, window, static_cast<std::size_t>(std::max<std::int64_t>(hi - lo, 0)), value);
-    for (std::size_t c = 0; c < n_channels; ++c) out.data.row(c)[k] = static_cast<float>(value[c]);
+    for (std::size_t c = 0; c < n_channels; ++c) out.data.row(c)[k] = value[c];
   }
   return out;
 }

@@ -2,6 +2,7 @@
 #include <catch2/catch.hpp>
 
 #include <cmath>
+#include <complex>
 
 #include "generator/sources/heart_sounds.hpp"
 #include "generator/transmission/render.hpp"
@@ -30,6 +31,39 @@ TEST_CASE("sampled envelope timing agrees with the closed form", "[truth]") {
   REQUIRE(t.peak_s == Approx(c.peak_s()).margin(0.25 / fs));
   REQUIRE(t.offset_s == Approx(c.offset_s()).margin(0.25 / fs));
   REQUIRE(t.peak_envelope == Approx(2.0).epsilon(1e-3));
+}
+
+TEST_CASE("timing from the analytic signal equals timing from its power and from its envelope", "[truth]") {
+  // A filtered-like transient starting at sample lo of its buffer (before it: values to ignore),
+  // and one with a flat top, where distinct powers share a root.
+  for (bool flat_top : {false, true}) {
+    const std::size_t n = 901, lo = 37;
+    std::vector<std::complex<double>> z(n, {5.0, -3.0});
+    std::vector<double> power(n, 0.0), envelope(n, 0.0);
+    for (std::size_t i = lo; i < n; ++i) {
+      const double x = (i - lo) / 40.0, a = flat_top ? std::min(1.0, 3 * x * std::exp(1.0 - x)) : x * x * std::exp(2.0 - x) / 4;
+      z[i] = std::polar(a, 0.37 * i);
+      power[i] = std::norm(z[i]);
+      envelope[i] = std::sqrt(power[i]);
+    }
+    double largest = 0;
+    for (double p : power) largest = std::max(largest, p);
+    const SoundTiming a = measure_analytic(z.data(), lo, n, largest, 0.25, 4000.0, kEnvelopeThreshold);
+    const SoundTiming b = measure_power(power.data(), n, 0.25, 4000.0, kEnvelopeThreshold);
+    const SoundTiming c = measure_envelope(envelope.data(), n, 0.25, 4000.0, kEnvelopeThreshold);
+    INFO("flat top " << flat_top);
+    REQUIRE(a.valid());
+    for (const SoundTiming* t : {&b, &c}) {
+      REQUIRE(a.onset_s == t->onset_s);
+      REQUIRE(a.peak_s == t->peak_s);
+      REQUIRE(a.offset_s == t->offset_s);
+      REQUIRE(a.peak_envelope == t->peak_envelope);
+    }
+  }
+  // All zero after lo: no timing.
+  std::vector<std::complex<double>> silent(50, {1.0, 1.0});
+  for (std::size_t i = 10; i < silent.size(); ++i) silent[i] = 0;
+  REQUIRE_FALSE(measure_analytic(silent.data(), 10, silent.size(), 0.0, 0.0, 4000.0, kEnvelopeThreshold).valid());
 }
 
 TEST_CASE("four-state labels follow S1 and S2 intervals", "[truth]") {
