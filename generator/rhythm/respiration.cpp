@@ -21,7 +21,7 @@ double Respiration::phase(double t_s) const {
   return phase(t_s, hint);
 }
 
-double Respiration::phase(double t_s, std::size_t& hint) const {
+double Respiration::phase_searched(double t_s, std::size_t& hint) const {
   double phase_time;
   double period;
   if (starts_.size() < 2 || t_s < starts_.front()) {
@@ -43,19 +43,11 @@ double Respiration::phase(double t_s, std::size_t& hint) const {
       }
     }
     hint = k;
-    // Inside the breath the quotient is in [0, 1] already (floor would return 0 unless it is 1).
-    const double ph = (t_s - starts_[k]) / (starts_[k + 1] - starts_[k]);
-    return ph < 1.0 ? ph : 0.0;
+    return phase_in_breath(t_s, k);
   }
   double ph = phase_time / period;
   ph -= std::floor(ph);
   return ph < 1.0 ? ph : 0.0;
-}
-
-double Respiration::swing(double ph) const {
-  const double f = inspiration_fraction_;
-  if (ph < f) return 0.5 * (1.0 - std::cos(M_PI * ph / f));
-  return 0.5 * (1.0 + std::cos(M_PI * (ph - f) / (1.0 - f)));
 }
 
 }  // namespace stethogen::gen
