@@ -1,6 +1,6 @@
 #include "generator/circulation/activation.hpp"
 
-#include "generator/circulation/fast_math.hpp"
+#include "generator/circulation/fast_cosine.hpp"
 
 #include <algorithm>
 #include <cmath>
@@ -21,9 +21,9 @@ inline double whole_power(double x, int n) {
 // logarithm, (u/tau1)^m1 = exp(m1 ln s + m1 ln(tau2/tau1)) and (u/tau2)^m2 = exp(m2 ln s), or
 // s^m2 by squaring for a whole m2: about half the cost of two pow.
 inline double hill_unit(double s, double log_ratio_term, double m1, double m2, int m2_whole) {
-  const double l = fast::log(s);
-  const double g1 = fast::exp(m1 * l + log_ratio_term);
-  const double g2 = m2_whole > 0 ? whole_power(s, m2_whole) : fast::exp(m2 * l);
+  const double l = std::log(s);
+  const double g1 = std::exp(m1 * l + log_ratio_term);
+  const double g2 = m2_whole > 0 ? whole_power(s, m2_whole) : std::exp(m2 * l);
   return g1 / ((1.0 + g1) * (1.0 + g2));
 }
 

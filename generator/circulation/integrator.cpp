@@ -7,7 +7,6 @@
 #include <fmt/format.h>
 
 #include "core/error.hpp"
-#include "generator/circulation/fast_math.hpp"
 
 namespace stethogen::gen {
 
@@ -26,8 +25,6 @@ Integrator::Integrator(const CirculationModel& model, const CirculationState& x0
 }
 
 namespace {
-// x^y for the non-negative error ratios (three calls per step).
-inline double power(double x, double y) { return fast::exp(y * fast::log(x)); }
 // Hairer's DOPRI5 defaults: safety factor, growth and shrink limits, and the exponents of the
 // current and the previous error (beta = 0.04, alpha = 1/5 - 0.75 beta).
 constexpr double kSafety = 0.9, kMaxGrowth = 10.0, kMaxShrink = 0.2, kBeta = 0.04, kAlpha = 0.2 - 0.75 * kBeta;
@@ -35,12 +32,12 @@ constexpr double kSafety = 0.9, kMaxGrowth = 10.0, kMaxShrink = 0.2, kBeta = 0.0
 
 double PiStepAdjuster::decrease_step(double dt, double error, int) {
   rejected_ = true;
-  dt *= std::max(kSafety / power(error, kAlpha), kMaxShrink);
+  dt *= std::max(kSafety / std::pow(error, kAlpha), kMaxShrink);
   return max_dt_s_ > 0 ? std::min(dt, max_dt_s_) : dt;
 }
 
 double PiStepAdjuster::increase_step(double dt, double error, int) {
-  double factor = kSafety * power(previous_error_, kBeta) / power(error, kAlpha);
+  double factor = kSafety * std::pow(previous_error_, kBeta) / std::pow(error, kAlpha);
   factor = std::clamp(factor, kMaxShrink, kMaxGrowth);
   if (rejected_) factor = std::min(factor, 1.0);
   rejected_ = false;

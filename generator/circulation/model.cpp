@@ -1,7 +1,5 @@
 #include "generator/circulation/model.hpp"
 
-#include "generator/circulation/fast_math.hpp"
-
 #include <algorithm>
 #include <cmath>
 
@@ -14,7 +12,7 @@ constexpr double kDynPerMmhg = 1333.22;
 // Time-varying elastance chamber (Suga et al. 1973; exponential EDPVR of Smith et al. 2004).
 inline double chamber_pressure(const ChamberParams& c, double e, double v) {
   const double dv = v - c.v0_ml;
-  return e * c.ees_mmhg_per_ml * dv + (1.0 - e) * c.ed_a_mmhg * (fast::exp(c.ed_b_per_ml * dv) - 1.0);
+  return e * c.ees_mmhg_per_ml * dv + (1.0 - e) * c.ed_a_mmhg * (std::exp(c.ed_b_per_ml * dv) - 1.0);
 }
 
 inline double compliance_pressure(const ComplianceParams& c, double v) {
@@ -58,7 +56,7 @@ void CirculationModel::outputs(const CirculationState& x, double t, ModelOutputs
   const double lung_factor = 1.0 / (1.0 + p_.lung_capacitance_per_mmhg * fall);
   activation_->activations(t, activation_cursor_, o.activation);
   const double vpcd = x[kVlv] + x[kVrv] - p_.pericardium_v0_ml;
-  o.p_pericardium = p_.pericardium_p0_mmhg * (fast::exp(p_.pericardium_lambda_per_ml * vpcd) - 1.0);
+  o.p_pericardium = p_.pericardium_p0_mmhg * (std::exp(p_.pericardium_lambda_per_ml * vpcd) - 1.0);
   o.p_thorax = pt;
   o.p_la = chamber_pressure(p_.la, o.activation[kLa], x[kVla]) + pt;
   o.p_ra = chamber_pressure(p_.ra, o.activation[kRa], x[kVra]) + pt;

@@ -6,7 +6,7 @@
 #include <cstddef>
 #include <vector>
 
-#include "generator/circulation/fast_math.hpp"
+#include "generator/circulation/fast_cosine.hpp"
 
 namespace stethogen::gen {
 
