@@ -12,7 +12,11 @@ Respiration::Respiration(std::vector<double> breath_starts_s, double nominal_per
       period_s_(nominal_period_s),
       inspiration_fraction_(inspiration_fraction),
       end_expiratory_mmhg_(end_expiratory_mmhg),
-      depth_mmhg_(depth_mmhg) {}
+      depth_mmhg_(depth_mmhg),
+      pi_over_inspiration_(M_PI / inspiration_fraction),
+      pi_over_expiration_(M_PI / (1.0 - inspiration_fraction)) {
+  for (std::size_t k = 0; k + 1 < starts_.size(); ++k) inverse_lengths_.push_back(1.0 / (starts_[k + 1] - starts_[k]));
+}
 
 Respiration Respiration::apnoea(double pleural_mmhg) { return Respiration({0.0}, 4.0, 0.4, pleural_mmhg, 0.0); }
 
