@@ -106,11 +106,15 @@ double ActivationPlan::activation(int chamber, double t_s) const {
 
 void ActivationPlan::activations(double t_s, ActivationCursor& c, std::array<double, 4>& e) const {
   if (t_s != c.t_s) {
-    c.value[kLv] = chamber_activation(pulses[kLv], t_s, c.pulse[kLv]);
-    c.value[kRv] = chamber_activation(pulses[kRv], t_s, c.pulse[kRv]);
-    c.value[kLa] = chamber_activation(pulses[kLa], t_s, c.pulse[kLa]);
-    c.value[kRa] = atria_identical ? c.value[kLa] : chamber_activation(pulses[kRa], t_s, c.pulse[kRa]);
+    // Computed into e first and copied whole into the cursor: element stores followed by a whole-
+    // array load would stall on store-to-load forwarding.
+    e[kLv] = chamber_activation(pulses[kLv], t_s, c.pulse[kLv]);
+    e[kRv] = chamber_activation(pulses[kRv], t_s, c.pulse[kRv]);
+    e[kLa] = chamber_activation(pulses[kLa], t_s, c.pulse[kLa]);
+    e[kRa] = atria_identical ? e[kLa] : chamber_activation(pulses[kRa], t_s, c.pulse[kRa]);
+    c.value = e;
     c.t_s = t_s;
+    return;
   }
   e = c.value;
 }
