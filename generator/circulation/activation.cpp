@@ -106,13 +106,16 @@ double ActivationPlan::activation(int chamber, double t_s) const {
 
 void ActivationPlan::activations(double t_s, ActivationCursor& c, std::array<double, 4>& e) const {
   if (t_s != c.t_s) {
-    // Computed into e first and copied whole into the cursor: element stores followed by a whole-
-    // array load would stall on store-to-load forwarding.
-    e[kLv] = chamber_activation(pulses[kLv], t_s, c.pulse[kLv]);
-    e[kRv] = chamber_activation(pulses[kRv], t_s, c.pulse[kRv]);
-    e[kLa] = chamber_activation(pulses[kLa], t_s, c.pulse[kLa]);
-    e[kRa] = atria_identical ? e[kLa] : chamber_activation(pulses[kRa], t_s, c.pulse[kRa]);
-    c.value = e;
+    // Stored element by element from registers: copying an array just written element by element
+    // would stall on store-to-load forwarding.
+    const double lv = chamber_activation(pulses[kLv], t_s, c.pulse[kLv]);
+    const double rv = chamber_activation(pulses[kRv], t_s, c.pulse[kRv]);
+    const double la = chamber_activation(pulses[kLa], t_s, c.pulse[kLa]);
+    const double ra = atria_identical ? la : chamber_activation(pulses[kRa], t_s, c.pulse[kRa]);
+    e[kLv] = c.value[kLv] = lv;
+    e[kRv] = c.value[kRv] = rv;
+    e[kLa] = c.value[kLa] = la;
+    e[kRa] = c.value[kRa] = ra;
     c.t_s = t_s;
     return;
   }
