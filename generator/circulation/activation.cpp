@@ -1,9 +1,9 @@
 #include "generator/circulation/activation.hpp"
 
-#include "generator/circulation/fast_cosine.hpp"
-
 #include <algorithm>
 #include <cmath>
+
+#include "generator/circulation/fast_cosine.hpp"
 
 namespace stethogen::gen {
 
