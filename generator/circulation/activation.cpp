@@ -3,6 +3,8 @@
 #include <algorithm>
 #include <cmath>
 
+#include "generator/circulation/fast_cosine.hpp"
+
 namespace stethogen::gen {
 
 namespace {
@@ -27,16 +29,17 @@ inline double hill_unit(double s, double log_ratio_term, double m1, double m2, i
 
 inline int whole_exponent(double m) { return m == std::round(m) && m >= 1.0 && m <= 64.0 ? static_cast<int>(m) : 0; }
 
-inline double shape(const ActivationPulse& p, double t_s) {
+// Inlined into every caller: the hot path evaluates six pulses per call.
+[[gnu::always_inline]] inline double shape(const ActivationPulse& p, double t_s) {
   const double u = t_s - p.onset_s;
   if (u <= 0.0) return 0.0;
   if (p.m1 > 0.0) {
     if (u >= kHillCutoff * p.b_s) return 0.0;
     return p.norm * hill_unit(u * p.rate_b, p.hill_log_ratio_term, p.m1, p.m2, p.hill_m2_whole);
   }
-  if (u < p.a_s) return 0.5 * (1.0 - std::cos(u * p.rate_a));
+  if (u < p.a_s) return 0.5 * (1.0 - fast::cos_half_turn(u * p.rate_a));
   const double w = u - p.a_s;
-  if (w < p.b_s) return 0.5 * (1.0 + std::cos(w * p.rate_b));
+  if (w < p.b_s) return 0.5 * (1.0 + fast::cos_half_turn(w * p.rate_b));
   return 0.0;
 }
 
@@ -56,7 +59,8 @@ inline bool last_started(const std::vector<ActivationPulse>& list, double t_s, s
   return true;
 }
 
-inline double chamber_activation(const std::vector<ActivationPulse>& list, double t_s, std::size_t& hint) {
+[[gnu::always_inline]] inline double chamber_activation(const std::vector<ActivationPulse>& list, double t_s,
+                                                        std::size_t& hint) {
   if (!last_started(list, t_s, hint)) return 0.0;
   double e = shape(list[hint], t_s);
   if (hint > 0) e = std::max(e, shape(list[hint - 1], t_s));
@@ -102,11 +106,18 @@ double ActivationPlan::activation(int chamber, double t_s) const {
 
 void ActivationPlan::activations(double t_s, ActivationCursor& c, std::array<double, 4>& e) const {
   if (t_s != c.t_s) {
-    c.value[kLv] = chamber_activation(pulses[kLv], t_s, c.pulse[kLv]);
-    c.value[kRv] = chamber_activation(pulses[kRv], t_s, c.pulse[kRv]);
-    c.value[kLa] = chamber_activation(pulses[kLa], t_s, c.pulse[kLa]);
-    c.value[kRa] = atria_identical ? c.value[kLa] : chamber_activation(pulses[kRa], t_s, c.pulse[kRa]);
+    // Stored element by element from registers: copying an array just written element by element
+    // would stall on store-to-load forwarding.
+    const double lv = chamber_activation(pulses[kLv], t_s, c.pulse[kLv]);
+    const double rv = chamber_activation(pulses[kRv], t_s, c.pulse[kRv]);
+    const double la = chamber_activation(pulses[kLa], t_s, c.pulse[kLa]);
+    const double ra = atria_identical ? la : chamber_activation(pulses[kRa], t_s, c.pulse[kRa]);
+    e[kLv] = c.value[kLv] = lv;
+    e[kRv] = c.value[kRv] = rv;
+    e[kLa] = c.value[kLa] = la;
+    e[kRa] = c.value[kRa] = ra;
     c.t_s = t_s;
+    return;
   }
   e = c.value;
 }

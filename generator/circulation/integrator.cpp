@@ -37,11 +37,13 @@ double PiStepAdjuster::decrease_step(double dt, double error, int) {
 }
 
 double PiStepAdjuster::increase_step(double dt, double error, int) {
-  double factor = kSafety * std::pow(previous_error_, kBeta) / std::pow(error, kAlpha);
+  // kSafety previous^beta / error^alpha, from one logarithm per step (the previous one is kept).
+  const double log_error = std::log(error);
+  double factor = kSafety * std::exp(kBeta * previous_log_error_ - kAlpha * log_error);
   factor = std::clamp(factor, kMaxShrink, kMaxGrowth);
   if (rejected_) factor = std::min(factor, 1.0);
   rejected_ = false;
-  previous_error_ = std::max(error, 1e-4);
+  previous_log_error_ = error > 1e-4 ? log_error : kLogErrorFloor;
   dt *= factor;
   return max_dt_s_ > 0 ? std::min(dt, max_dt_s_) : dt;
 }

@@ -36,7 +36,8 @@ class PiStepAdjuster {
 
  private:
   double max_dt_s_;
-  double previous_error_ = 1e-4;
+  static constexpr double kLogErrorFloor = -9.210340371976184;  // ln 1e-4: the previous error counts at least 1e-4
+  double previous_log_error_ = kLogErrorFloor;                  // ln of the previous step's error
   bool rejected_ = false;
 };
 

@@ -15,8 +15,8 @@ inline double chamber_pressure(const ChamberParams& c, double e, double v) {
   return e * c.ees_mmhg_per_ml * dv + (1.0 - e) * c.ed_a_mmhg * (std::exp(c.ed_b_per_ml * dv) - 1.0);
 }
 
-inline double compliance_pressure(const ComplianceParams& c, double v) {
-  return (v - c.unstressed_ml) / c.compliance_ml_per_mmhg;
+inline double compliance_pressure(const ComplianceParams& c, double inverse_compliance, double v) {
+  return (v - c.unstressed_ml) * inverse_compliance;
 }
 
 }  // namespace
@@ -27,10 +27,16 @@ CirculationModel::CirculationModel(const CirculationParams& params, const Activa
   const double rho = p_.blood_density_g_per_cm3;
   valves_ = {coefficients(p_.mitral, rho), coefficients(p_.aortic, rho), coefficients(p_.tricuspid, rho),
              coefficients(p_.pulmonic, rho)};
+  const auto inv_c = [](const ComplianceParams& c) { return 1.0 / c.compliance_ml_per_mmhg; };
+  inverse_ = {inv_c(p_.aorta), inv_c(p_.systemic_arteries), inv_c(p_.systemic_veins), inv_c(p_.thoracic_veins),
+              inv_c(p_.pulmonary_artery), inv_c(p_.lung_arteries), inv_c(p_.pulmonary_veins),
+              1.0 / p_.systemic_resistance_mmhg_s_per_ml, 1.0 / p_.venous_resistance_mmhg_s_per_ml,
+              1.0 / p_.caval_resistance_mmhg_s_per_ml, 1.0 / p_.pulmonary_resistance_mmhg_s_per_ml,
+              1.0 / p_.aortic_inertance_mmhg_s2_per_ml, 1.0 / p_.pulmonary_inertance_mmhg_s2_per_ml};
 }
 
 CirculationModel::ValveCoefficients CirculationModel::coefficients(const ValveParams& v, double rho) {
-  return {rho / (2.0 * kDynPerMmhg), rho * v.effective_length_cm / kDynPerMmhg,
+  return {rho / (2.0 * kDynPerMmhg), kDynPerMmhg / (rho * v.effective_length_cm),
           v.annulus_area_cm2 * v.max_open_fraction, v.annulus_area_cm2 * v.min_open_fraction,
           v.k_open_per_mmhg_s, v.k_close_per_mmhg_s, v.open_threshold_mmhg, v.close_threshold_mmhg};
 }
@@ -42,9 +48,9 @@ void CirculationModel::valve(const ValveCoefficients& c, double dp, double q, do
                              double& dzeta) {
   const double z = std::clamp(zeta, 0.0, 1.0);
   const double area = c.area_closed_cm2 + (c.area_open_cm2 - c.area_closed_cm2) * z;
-  const double bernoulli = c.bernoulli_factor / (area * area);
-  const double inertance = c.inertance_factor / area;
-  dq = (dp - bernoulli * q * std::fabs(q)) / inertance;
+  const double inverse_area = 1.0 / area;
+  const double bernoulli = c.bernoulli_factor * inverse_area * inverse_area;
+  dq = (dp - bernoulli * q * std::fabs(q)) * (area * c.inverse_inertance_factor);
   if (dp > c.dp_open) dzeta = (1.0 - z) * c.k_open * (dp - c.dp_open);
   else if (dp < c.dp_close) dzeta = z * c.k_close * (dp - c.dp_close);
   else dzeta = 0.0;
@@ -63,23 +69,24 @@ void CirculationModel::outputs(const CirculationState& x, double t, ModelOutputs
   o.p_lv = chamber_pressure(p_.lv, o.activation[kLv], x[kVlv]) + o.p_pericardium + pt;
   o.p_rv = chamber_pressure(p_.rv, o.activation[kRv], x[kVrv]) + o.p_pericardium + pt;
   // Intrathoracic vessels feel the pleural pressure; the systemic arteries and veins do not.
-  o.p_ao = compliance_pressure(p_.aorta, x[kVao]) + pt;
-  o.p_sa = compliance_pressure(p_.systemic_arteries, x[kVsa]);
-  o.p_sv = compliance_pressure(p_.systemic_veins, x[kVsv]) + p_.abdominal_pressure_per_pleural * fall;
-  o.p_tv = compliance_pressure(p_.thoracic_veins, x[kVtv]) + pt;
-  o.p_pa = compliance_pressure(p_.pulmonary_artery, x[kVpa]) * lung_factor + pt;
-  o.p_lu = compliance_pressure(p_.lung_arteries, x[kVlu]) * lung_factor + pt;
-  o.p_pv = compliance_pressure(p_.pulmonary_veins, x[kVpv]) + pt;
+  o.p_ao = compliance_pressure(p_.aorta, inverse_.aorta, x[kVao]) + pt;
+  o.p_sa = compliance_pressure(p_.systemic_arteries, inverse_.systemic_arteries, x[kVsa]);
+  o.p_sv = compliance_pressure(p_.systemic_veins, inverse_.systemic_veins, x[kVsv]) +
+           p_.abdominal_pressure_per_pleural * fall;
+  o.p_tv = compliance_pressure(p_.thoracic_veins, inverse_.thoracic_veins, x[kVtv]) + pt;
+  o.p_pa = compliance_pressure(p_.pulmonary_artery, inverse_.pulmonary_artery, x[kVpa]) * lung_factor + pt;
+  o.p_lu = compliance_pressure(p_.lung_arteries, inverse_.lung_arteries, x[kVlu]) * lung_factor + pt;
+  o.p_pv = compliance_pressure(p_.pulmonary_veins, inverse_.pulmonary_veins, x[kVpv]) + pt;
 }
 
 void CirculationModel::rhs(const CirculationState& x, CirculationState& d, double t) const {
   ++rhs_evaluations_;
   ModelOutputs o;
   outputs(x, t, o);
-  const double q_sys = (o.p_sa - o.p_sv) / p_.systemic_resistance_mmhg_s_per_ml;
-  const double q_ven = (o.p_sv - o.p_tv) / p_.venous_resistance_mmhg_s_per_ml;
-  const double q_cav = (o.p_tv - o.p_ra) / p_.caval_resistance_mmhg_s_per_ml;
-  const double q_lung = (o.p_lu - o.p_pv) / p_.pulmonary_resistance_mmhg_s_per_ml;
+  const double q_sys = (o.p_sa - o.p_sv) * inverse_.systemic;
+  const double q_ven = (o.p_sv - o.p_tv) * inverse_.venous;
+  const double q_cav = (o.p_tv - o.p_ra) * inverse_.caval;
+  const double q_lung = (o.p_lu - o.p_pv) * inverse_.pulmonary;
   const double q_pv = (o.p_pv - o.p_la) / (p_.pulmonary_venous_resistance_mmhg_s_per_ml *
                                            (1.0 + p_.pulmonary_venous_sleeve_gain * o.activation[kLa]));
 
@@ -88,9 +95,8 @@ void CirculationModel::rhs(const CirculationState& x, CirculationState& d, doubl
   valve(valves_[2], o.p_ra - o.p_rv, x[kQtr], x[kZtr], d[kQtr], d[kZtr]);
   valve(valves_[3], o.p_rv - o.p_pa, x[kQpu], x[kZpu], d[kQpu], d[kZpu]);
 
-  d[kQsa] = (o.p_ao - o.p_sa - p_.aortic_resistance_mmhg_s_per_ml * x[kQsa]) / p_.aortic_inertance_mmhg_s2_per_ml;
-  d[kQpa] = (o.p_pa - o.p_lu - p_.pulmonary_char_resistance_mmhg_s_per_ml * x[kQpa]) /
-            p_.pulmonary_inertance_mmhg_s2_per_ml;
+  d[kQsa] = (o.p_ao - o.p_sa - p_.aortic_resistance_mmhg_s_per_ml * x[kQsa]) * inverse_.aortic_inertance;
+  d[kQpa] = (o.p_pa - o.p_lu - p_.pulmonary_char_resistance_mmhg_s_per_ml * x[kQpa]) * inverse_.pulmonary_inertance;
 
   d[kVla] = q_pv - x[kQmi];
   d[kVlv] = x[kQmi] - x[kQao];

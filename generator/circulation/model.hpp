@@ -45,8 +45,15 @@ class CirculationModel {
  private:
   struct ValveCoefficients {
     double bernoulli_factor;  // rho / (2 * 1333.22): B = factor / A^2, mmHg s^2 cm^4 / mL^2
-    double inertance_factor;  // rho * l / 1333.22: L = factor / A, mmHg s^2 cm^2 / mL
+    double inverse_inertance_factor;  // 1333.22 / (rho * l): 1 / L = A x this, mL / (mmHg s^2 cm^2)
     double area_open_cm2, area_closed_cm2, k_open, k_close, dp_open, dp_close;
+  };
+  // Reciprocals of the fixed compliances (mmHg/mL), resistances (mL/(mmHg s)) and inertances,
+  // so that the right-hand side multiplies: divisions are slow and lie on its dependency chains.
+  struct Reciprocals {
+    double aorta, systemic_arteries, systemic_veins, thoracic_veins, pulmonary_artery, lung_arteries,
+        pulmonary_veins;
+    double systemic, venous, caval, pulmonary, aortic_inertance, pulmonary_inertance;
   };
   static ValveCoefficients coefficients(const ValveParams& v, double density);
   static void valve(const ValveCoefficients& c, double dp, double q, double zeta, double& dq, double& dzeta);
@@ -55,6 +62,7 @@ class CirculationModel {
   const ActivationPlan* activation_;
   const Respiration* respiration_;
   std::array<ValveCoefficients, 4> valves_;  // mitral, aortic, tricuspid, pulmonic
+  Reciprocals inverse_;
   mutable std::uint64_t rhs_evaluations_ = 0;
   mutable ActivationCursor activation_cursor_;  // search start and last values
   mutable std::size_t breath_hint_ = 0;         // search start of the breath lookup

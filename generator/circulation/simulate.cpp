@@ -227,8 +227,9 @@ EngineRun run_engine(const SubjectSpec& subject, const IntegratorSettings& setti
     }
     previous = now;
     if (t_prev < series_begin && series_begin <= t_now) integ.state_at(series_begin, run.series_start_state);
-    while (s.size() < n_samples && s.time_at(s.size()) <= t_now) {
+    while (s.size() < n_samples) {
       const double t = s.time_at(s.size());
+      if (t > t_now) break;
       integ.state_at(t, x);
       model.outputs(x, t, o);
       push_sample(s, x, o, run.rhythm.respiration.phase(t, breath_hint));

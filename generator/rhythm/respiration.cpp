@@ -12,7 +12,11 @@ Respiration::Respiration(std::vector<double> breath_starts_s, double nominal_per
       period_s_(nominal_period_s),
       inspiration_fraction_(inspiration_fraction),
       end_expiratory_mmhg_(end_expiratory_mmhg),
-      depth_mmhg_(depth_mmhg) {}
+      depth_mmhg_(depth_mmhg),
+      pi_over_inspiration_(M_PI / inspiration_fraction),
+      pi_over_expiration_(M_PI / (1.0 - inspiration_fraction)) {
+  for (std::size_t k = 0; k + 1 < starts_.size(); ++k) inverse_lengths_.push_back(1.0 / (starts_[k + 1] - starts_[k]));
+}
 
 Respiration Respiration::apnoea(double pleural_mmhg) { return Respiration({0.0}, 4.0, 0.4, pleural_mmhg, 0.0); }
 
@@ -21,7 +25,7 @@ double Respiration::phase(double t_s) const {
   return phase(t_s, hint);
 }
 
-double Respiration::phase(double t_s, std::size_t& hint) const {
+double Respiration::phase_searched(double t_s, std::size_t& hint) const {
   double phase_time;
   double period;
   if (starts_.size() < 2 || t_s < starts_.front()) {
@@ -43,19 +47,11 @@ double Respiration::phase(double t_s, std::size_t& hint) const {
       }
     }
     hint = k;
-    // Inside the breath the quotient is in [0, 1] already (floor would return 0 unless it is 1).
-    const double ph = (t_s - starts_[k]) / (starts_[k + 1] - starts_[k]);
-    return ph < 1.0 ? ph : 0.0;
+    return phase_in_breath(t_s, k);
   }
   double ph = phase_time / period;
   ph -= std::floor(ph);
   return ph < 1.0 ? ph : 0.0;
-}
-
-double Respiration::swing(double ph) const {
-  const double f = inspiration_fraction_;
-  if (ph < f) return 0.5 * (1.0 - std::cos(M_PI * ph / f));
-  return 0.5 * (1.0 + std::cos(M_PI * (ph - f) / (1.0 - f)));
 }
 
 }  // namespace stethogen::gen
