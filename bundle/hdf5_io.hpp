@@ -12,6 +12,7 @@
 
 #include "bundle/chunk_codec.hpp"
 #include "bundle/table.hpp"
+#include "bundle/table_codec.hpp"
 
 namespace stethogen::bundle::h5 {
 
@@ -100,13 +101,16 @@ Id write_array(hid_t parent, const std::string& name, const void* data, hid_t me
 // (H5Dwrite_chunk, all filters applied): the cheap half of writing, on the HDF5 thread.
 // The little-endian file type each stored type is written as.
 hid_t file_type_of(StoredType t);
-Id write_encoded(hid_t parent, const std::string& name, const EncodedArray& array);
+// file_type: the stored type; -1 = file_type_of(array.type) (a packed table needs compound_type).
+Id write_encoded(hid_t parent, const std::string& name, const EncodedArray& array, hid_t file_type = -1);
 std::vector<std::uint64_t> shape(hid_t dataset);
 // Reads a whole dataset converted to mem_type; out must hold the element count.
-void read_all(hid_t dataset, hid_t mem_type, void* out, const std::string& what);
+void read_all(hid_t dataset, hid_t mem_type, void* out, const std::string& what, hid_t dxpl = H5P_DEFAULT);
 
-// Packed compound tables, one member per column. Chunked (gzip, shuffle, Fletcher32) unless empty.
-Id write_table(hid_t parent, const std::string& name, const Table& table, int gzip_level);
+// The compound file type of a packed table (bundle/table_codec.hpp).
+Id compound_type(const std::vector<TableMember>& members, std::size_t row_bytes);
+// Packed compound tables, one member per column (encode_table), chunked with `filters` unless empty.
+Id write_table(hid_t parent, const std::string& name, const Table& table, const ChunkFilters& filters);
 Table read_table(hid_t dataset, const std::string& what);
 
 }  // namespace stethogen::bundle::h5

@@ -14,6 +14,7 @@ namespace stethogen::bundle {
 
 class BundleReader;
 struct EncodedRecord;
+struct StagedRecord;
 
 struct WriterOptions {
   // Temporary file; empty = "<target>.partial". Must be on the target's file system.
@@ -45,6 +46,9 @@ class BundleWriter {
   // sample_format and compression, e.g. on a synthesis thread): only HDF5 bookkeeping is left.
   void write_record(const Record& record, const EncodedRecord& encoded, const RecordParts& parts = RecordParts::all(),
                     const std::string& record_id_override = {});
+
+  // Appends a record staged for this bundle (stage_record with staging_settings of its attributes).
+  void write_staged(const StagedRecord& record);
 
   // Copies /records/<record_id> of another bundle unchanged (raw compressed chunks) and its
   // /index row: merging shards this way gives the same bytes as writing the records directly.

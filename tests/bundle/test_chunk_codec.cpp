@@ -44,6 +44,7 @@ hid_t mem_type(StoredType t) {
     case StoredType::i16: return H5T_NATIVE_INT16;
     case StoredType::i32: return H5T_NATIVE_INT32;
     case StoredType::f32: return H5T_NATIVE_FLOAT;
+    case StoredType::packed: break;
   }
   return -1;
 }

@@ -23,7 +23,7 @@ std::size_t count_scratch(const fs::path& workdir) {
   std::size_t n = 0;
   std::error_code ec;
   for (const auto& e : fs::directory_iterator(workdir, ec))
-    if (std::regex_match(e.path().filename().string(), std::regex(R"(rec-\d+\.h5)"))) ++n;
+    if (std::regex_match(e.path().filename().string(), std::regex(R"(rec-\d+\.stg)"))) ++n;
   return n;
 }
 
