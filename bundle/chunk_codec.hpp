@@ -66,6 +66,10 @@ ChunkFilters filters_for(DatasetRole role, SampleFormat format, Compression comp
 EncodedArray encode_signal(const SiteArray<float>& signal, SampleFormat format, const ChunkFilters& filters,
                            std::size_t chunk_cols);
 
+// Chunk length for n samples in chunks of at most `most`, split evenly (a 30 s signal at 4 kHz:
+// 8 chunks of 15000 instead of 8 of 16384, the last mostly padding).
+std::size_t balanced_chunk(std::size_t n, std::size_t most);
+
 // The chunked arrays of one record, filtered (the expensive part of writing it); the tables and
 // attributes are left to the writer (small).
 struct EncodedRecord {
