@@ -93,6 +93,7 @@ Id bounded_cache_fapl() {
   config.min_size = std::min<std::size_t>(config.min_size, config.initial_size);
   config.max_size = kMetadataCacheBytes;
   check_status(H5Pset_mdc_config(fapl, &config), "metadata cache configuration");
+  check_status(H5Pset_meta_block_size(fapl, kMetadataBlockBytes), "metadata block size");
   return fapl;
 }
 
@@ -102,8 +103,15 @@ Id group_plist() {
   return plist;
 }
 
-Id make_group(hid_t parent, const std::string& name) {
+std::size_t name_heap_bytes(const std::vector<std::string>& names) {
+  std::size_t bytes = 8;  // the heap's empty first name
+  for (const std::string& n : names) bytes += (n.size() + 1 + 7) / 8 * 8;
+  return bytes;
+}
+
+Id make_group(hid_t parent, const std::string& name, std::size_t name_heap_hint) {
   Id plist = group_plist();
+  if (name_heap_hint > 0) check_status(H5Pset_local_heap_size_hint(plist, name_heap_hint), "group properties");
   return Id(check(H5Gcreate2(parent, name.c_str(), H5P_DEFAULT, plist, H5P_DEFAULT), "create group " + name));
 }
 

@@ -7,7 +7,6 @@
 #include <cmath>
 #include <cstdlib>
 #include <ctime>
-#include <set>
 
 #include <fmt/format.h>
 
@@ -51,10 +50,12 @@ struct BundleWriter::Impl {
   h5::Id file, records;
   std::vector<IndexRow> index;
   std::vector<SkippedRecord> skipped;
-  std::set<std::string> ids;
   bool open = false;
 
   std::string where(const std::string& object) const { return fmt::format("{}: {}", temp.string(), object); }
+
+  // Asked of the file rather than kept in a set, so memory does not grow with the record count.
+  bool has_record(const std::string& id) const { return H5Lexists(records, id.c_str(), H5P_DEFAULT) > 0; }
 
   ChunkFilters table_filters() const { return bundle::table_filters(attributes.compression); }
 
@@ -72,8 +73,19 @@ struct BundleWriter::Impl {
   }
 
   // The record's group, then its objects in order; a subgroup stays open for the datasets in it.
+  // The names of the members of the group at `path` ("" = the record's group).
+  static std::vector<std::string> member_names(const StagedRecord& r, const std::string& path) {
+    std::vector<std::string> names;
+    for (const StagedObject& o : r.objects) {
+      const std::size_t slash = o.path.rfind('/');
+      const std::string parent = slash == std::string::npos ? std::string() : o.path.substr(0, slash);
+      if (parent == path) names.push_back(slash == std::string::npos ? o.path : o.path.substr(slash + 1));
+    }
+    return names;
+  }
+
   void write(const StagedRecord& r) {
-    h5::Id g = h5::make_group(records, r.row.record_id);
+    h5::Id g = h5::make_group(records, r.row.record_id, h5::name_heap_bytes(member_names(r, "")));
     write_attributes(g, r.attributes);
     std::string open_path;
     h5::Id open_group;
@@ -87,7 +99,7 @@ struct BundleWriter::Impl {
       }
       const hid_t parent = parent_path.empty() ? hid_t(g) : hid_t(open_group);
       if (o.group) {
-        h5::Id sub = h5::make_group(parent, leaf);
+        h5::Id sub = h5::make_group(parent, leaf, h5::name_heap_bytes(member_names(r, o.path)));
         write_attributes(sub, o.attributes);
         continue;
       }
@@ -172,7 +184,7 @@ void BundleWriter::write_staged(const StagedRecord& record) {
   if (!m.open) throw std::logic_error("BundleWriter: write after finish/abandon");
   if (id.empty() || id.find('/') != std::string::npos || id == "." )
     throw InputError(fmt::format("record id '{}': must be non-empty and contain no '/'", id));
-  if (!m.ids.insert(id).second) throw InputError(fmt::format("{}: duplicate record id '{}'", m.target.string(), id));
+  if (m.has_record(id)) throw InputError(fmt::format("{}: duplicate record id '{}'", m.target.string(), id));
   try {
     m.write(record);
   } catch (const RuntimeFailure& e) {
@@ -187,7 +199,7 @@ void BundleWriter::copy_record(const BundleReader& source, const std::string& re
   if (!m.open) throw std::logic_error("BundleWriter: write after finish/abandon");
   const IndexRow* row = source.impl_->row(record_id);
   if (!row) throw InputError(fmt::format("{}: no record '{}'", source.path().string(), record_id));
-  if (!m.ids.insert(record_id).second)
+  if (m.has_record(record_id))
     throw InputError(fmt::format("{}: duplicate record id '{}'", source.path().string(), record_id));
   const std::string from = "/records/" + record_id;
   if (H5Ocopy(source.impl_->file, from.c_str(), m.records, record_id.c_str(), H5P_DEFAULT, H5P_DEFAULT) < 0)
