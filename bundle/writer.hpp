@@ -76,8 +76,8 @@ class BundleWriter {
   std::unique_ptr<Impl> impl_;
 };
 
-// Samples per chunk along the sample axis, and the gzip level of compression = "compact" (chosen
-// by measurement, docs/bundle-format.md).
+// Most samples per chunk along the sample axis (a signal is split evenly: balanced_chunk), and
+// the gzip level of compression = "compact" (chosen by measurement, docs/bundle-format.md).
 inline constexpr std::size_t kPcgChunkSamples = 16384;
 inline constexpr int kGzipLevel = 4;
 // Half the fan-out of the chunk-index B-tree nodes (HDF5's istore_k; its default is 32).
