@@ -129,7 +129,8 @@ struct Outcome {
 
 // Synthesises records [begin, end) on worker threads, and stages them there too (chunks filtered:
 // shuffle, deflate, checksums, the costly part of writing) and saves their scratch files; take(i)
-// hands them to the single HDF5 writer in index order. At most `window` records are held at once, so memory is flat in the record count.
+// hands them to the single HDF5 writer in index order. At most `window` records are held at
+// once, so memory is flat in the record count.
 // With one thread there are no workers: take(i) synthesises record i itself, so `--threads 1`
 // keeps one core busy and N threads scale against it (the writer's share is a few ms per record).
 class RecordPipeline {
