@@ -35,9 +35,9 @@ StageTimes time_stages(const recipe::Recipe& recipe, std::uint64_t records, std:
 // Writing the records as `generate` does (bench/writing_timing.cpp): thread CPU seconds summed
 // over records, and the final bundle's size.
 struct WritingTimes {
-  double encode_s = 0;    // chunk filtering (shuffle, deflate, Fletcher32): on the synthesis threads
-  double store_s = 0;     // one-record scratch bundles: on the single HDF5 thread
-  double assemble_s = 0;  // the final copy into one bundle: single thread, after the last record
+  double encode_s = 0;    // chunk filtering (shuffle, deflate, Fletcher32), staging, the scratch file: synthesis threads
+  double store_s = 0;     // the staged records into the bundle: the single HDF5 thread
+  double assemble_s = 0;  // finishing the bundle (index, flush, close): single thread, after the last record
   double audio_s = 0;
   std::uint64_t bytes = 0, records = 0;
   double total_s() const { return encode_s + store_s + assemble_s; }

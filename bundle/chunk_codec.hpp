@@ -29,9 +29,10 @@ struct ChunkFilters {
   bool operator==(const ChunkFilters&) const = default;
 };
 
-// Stored element types (little-endian in the file and in the chunk bytes).
-enum class StoredType : unsigned char { u8, i16, i32, f32 };
-std::size_t element_size(StoredType t);
+// Stored element types (little-endian in the file and in the chunk bytes); packed = rows of a
+// packed compound table (bundle/table_codec.hpp), whose size the array records.
+enum class StoredType : unsigned char { u8, i16, i32, f32, packed };
+std::size_t element_size(StoredType t);  // 0 for packed
 
 // A [rows, cols] array (1-D when one_d) as filtered chunks of [1, chunk_cols] (the last chunk of a
 // row zero-padded, as HDF5 pads with the fill value), in the order row 0 chunk 0, row 0 chunk 1, ...
@@ -40,6 +41,7 @@ struct EncodedArray {
   bool one_d = false;
   std::size_t chunk_cols = 0;  // min(requested, cols); 0 for an empty array
   StoredType type = StoredType::f32;
+  std::size_t element_bytes = 4;
   ChunkFilters filters;
   std::vector<std::vector<unsigned char>> chunks;
   std::size_t chunks_per_row() const { return chunk_cols ? (cols + chunk_cols - 1) / chunk_cols : 0; }
@@ -48,6 +50,9 @@ struct EncodedArray {
 // data: rows * cols elements of `type`, row-major, native little-endian.
 EncodedArray encode_array(const void* data, std::size_t rows, std::size_t cols, bool one_d, StoredType type,
                           std::size_t chunk_cols, const ChunkFilters& filters);
+// The same for elements of element_bytes each (packed table rows: type = packed).
+EncodedArray encode_elements(const void* data, std::size_t rows, std::size_t cols, bool one_d, StoredType type,
+                             std::size_t element_bytes, std::size_t chunk_cols, const ChunkFilters& filters);
 
 // HDF5's Fletcher32 (H5_checksum_fletcher32): Fletcher (1982), IEEE Trans. Commun. 30(1), on
 // 16-bit big-endian words, an odd last byte as the high byte of a word.
@@ -60,6 +65,10 @@ ChunkFilters filters_for(DatasetRole role, SampleFormat format, Compression comp
 // pcg-like storage: float32 as is, integers round(value * full scale) clipped (docs/bundle-format.md).
 EncodedArray encode_signal(const SiteArray<float>& signal, SampleFormat format, const ChunkFilters& filters,
                            std::size_t chunk_cols);
+
+// Chunk length for n samples in chunks of at most `most`, split evenly (a 30 s signal at 4 kHz:
+// 8 chunks of 15000 instead of 8 of 16384, the last mostly padding).
+std::size_t balanced_chunk(std::size_t n, std::size_t most);
 
 // The chunked arrays of one record, filtered (the expensive part of writing it); the tables and
 // attributes are left to the writer (small).

@@ -10,14 +10,12 @@
 #include <regex>
 #include <thread>
 
-#include <sys/resource.h>
-
 #include <fmt/format.h>
 #include <nlohmann/json.hpp>
 
 #include "bundle/chunk_codec.hpp"
-#include "bundle/merge.hpp"
-#include "bundle/reader.hpp"
+#include "bundle/scratch_file.hpp"
+#include "bundle/staged_record.hpp"
 #include "bundle/writer.hpp"
 #include "core/error.hpp"
 #include "generator/pipeline.hpp"
@@ -29,26 +27,6 @@ namespace stethogen::bundle {
 namespace fs = std::filesystem;
 
 namespace {
-
-// libhdf5 1.10 can crash inside H5Ocopy after a failed write, so the merge must not start unless
-// the final file fits: within the file-size limit (ulimit -f) and the free space of its folder.
-// The copy moves compressed chunks as they are, so the parts' total size bounds the result.
-void check_room_for(const std::vector<fs::path>& parts, const fs::path& output) {
-  std::uintmax_t needed = 0;
-  for (const fs::path& p : parts) needed += fs::file_size(p);
-  needed += needed / 50 + (1u << 20);  // index, attributes, allocation slack
-  rlimit limit{};
-  if (::getrlimit(RLIMIT_FSIZE, &limit) == 0 && limit.rlim_cur != RLIM_INFINITY && needed > limit.rlim_cur)
-    throw RuntimeFailure(fmt::format("{}: File too large: the bundle needs about {} bytes, the file-size limit "
-                                     "(ulimit -f) is {} bytes", output.string(), needed, limit.rlim_cur));
-  const fs::path folder = output.has_parent_path() ? output.parent_path() : fs::path(".");
-  std::error_code ec;
-  const fs::space_info space = fs::space(folder, ec);
-  if (!ec && needed > space.available)
-    throw RuntimeFailure(fmt::format("{}: No space left on device: the bundle needs about {} bytes, {} has {} free",
-                                     output.string(), needed, folder.string(), space.available));
-}
-
 
 std::atomic<int> g_signal{0};
 
@@ -80,15 +58,15 @@ class SignalScope {
   void (*old_xfsz_)(int);
 };
 
-// Each finished record (or skipped-record note) is a one-record bundle in the run directory,
-// renamed into place when complete. One record per file keeps every record's HDF5 layout
-// independent of its neighbours, so the assembled bundle has the same bytes whatever the
-// thread count, shard split or interruptions.
-std::string scratch_name(std::uint64_t index) { return fmt::format("rec-{:012}.h5", index); }
+// Each finished record (or skipped-record note) is a scratch file in the run directory
+// (bundle/scratch_file.hpp), renamed into place when complete, from which --resume rebuilds the
+// records written before an interruption. The bundle itself is written once, in record order,
+// from the same staged form, so it has the same bytes whatever the thread count or interruptions.
+std::string scratch_name(std::uint64_t index) { return fmt::format("rec-{:012}.stg", index); }
 
 // Index of the first record of the range without a scratch file; removes partial files.
 std::uint64_t scan_scratch(const fs::path& workdir, const RecordRange& range) {
-  static const std::regex pattern(R"(rec-(\d{12})\.h5)");
+  static const std::regex pattern(R"(rec-(\d{12})\.stg)");
   std::vector<std::uint64_t> done;
   for (const auto& entry : fs::directory_iterator(workdir)) {
     const std::string name = entry.path().filename().string();
@@ -140,25 +118,28 @@ struct StopOnFailure : RuntimeFailure {
   using RuntimeFailure::RuntimeFailure;
 };
 
-// One synthesised record (with its chunked arrays already filtered) or the reason it failed.
+// One synthesised record as the bundle stores it, or the reason it failed; saved to its scratch
+// file by then (save_error: why that failed, a write error that stops the run).
 struct Outcome {
-  std::optional<Record> record;
-  std::optional<EncodedRecord> encoded;
+  std::optional<StagedRecord> record;
   std::string record_id;
   std::string failure;
+  std::string save_error;
 };
 
-// Synthesises records [begin, end) on worker threads, and filters their chunks there too (shuffle,
-// deflate, checksums: the costly part of writing); take(i) hands them to the single HDF5 writer in
-// index order. At most `window` records are held at once, so memory is flat in the record count.
+// Synthesises records [begin, end) on worker threads, and stages them there too (chunks filtered:
+// shuffle, deflate, checksums, the costly part of writing) and saves their scratch files; take(i)
+// hands them to the single HDF5 writer in index order. At most `window` records are held at
+// once, so memory is flat in the record count.
 // With one thread there are no workers: take(i) synthesises record i itself, so `--threads 1`
 // keeps one core busy and N threads scale against it (the writer's share is a few ms per record).
 class RecordPipeline {
  public:
   RecordPipeline(const recipe::Recipe& recipe, RecordRange todo, unsigned threads,
-                 std::function<Record(const SubjectSpec&)> synthesize, const BundleAttributes& attributes)
-      : recipe_(recipe), synthesize_(std::move(synthesize)), format_(attributes.sample_format),
-        compression_(attributes.compression), next_dispatch_(todo.begin), end_(todo.end),
+                 std::function<Record(const SubjectSpec&)> synthesize, const BundleAttributes& attributes,
+                 fs::path workdir, bool save_failures)
+      : recipe_(recipe), synthesize_(std::move(synthesize)), settings_(staging_settings(attributes)),
+        workdir_(std::move(workdir)), save_failures_(save_failures), next_dispatch_(todo.begin), end_(todo.end),
         next_write_(todo.begin),
         window_(2 * threads), inline_(threads <= 1) {
     if (!inline_)
@@ -225,27 +206,38 @@ class RecordPipeline {
     }
   }
 
-  // Record i synthesised and its chunks filtered, or why it failed.
+  // Record i synthesised and staged, or why it failed; its scratch file saved.
   Outcome produce(std::uint64_t i) {
     Outcome out;
     out.record_id = recipe::record_id(i);
     try {
       SubjectSpec subject = recipe::plan_record(recipe_, i);
       out.record_id = subject.record_id;
-      out.record = synthesize_(subject);
-      out.encoded = encode_record(*out.record, RecordParts::all(), format_, compression_);
-    } catch (const RecordFailure& e) {
-      out.failure = e.what();
+      const Record record = synthesize_(subject);
+      out.record = stage_record(record, encode_record(record, RecordParts::all(), settings_.sample_format,
+                                                      settings_.compression),
+                                RecordParts::all(), settings_);
     } catch (const std::exception& e) {
       out.failure = e.what();
     }
+    ScratchEntry entry;
+    if (out.record) entry.record = std::move(out.record);
+    else if (save_failures_) entry.skipped = SkippedRecord{out.record_id, i, out.failure};
+    else return out;
+    try {
+      save_scratch(workdir_ / scratch_name(i), entry);
+    } catch (const std::exception& e) {
+      out.save_error = e.what();
+    }
+    out.record = std::move(entry.record);
     return out;
   }
 
   const recipe::Recipe& recipe_;
   std::function<Record(const SubjectSpec&)> synthesize_;
-  SampleFormat format_;
-  Compression compression_;
+  StagingSettings settings_;
+  fs::path workdir_;
+  bool save_failures_;
   std::mutex mu_;
   std::condition_variable done_cv_, space_cv_;
   std::map<std::uint64_t, Outcome> results_;
@@ -337,31 +329,60 @@ GenerateResult generate(const GenerateOptions& options) {
   fs::create_directories(workdir);
   write_manifest(workdir, manifest);
 
+  GenerateResult result;
+  result.output = output;
+  SignalScope signals;
+  const auto write_failure = [&](const std::exception& e) {
+    return RuntimeFailure(fmt::format("{}\nno output written; completed records are kept in {}: fix the cause and "
+                                      "run `{}`", e.what(), workdir.string(), resume_hint(options, output)));
+  };
+  // The bundle is written as the records come, under a temporary name in the run directory, and
+  // renamed into place at the end; an interrupted run leaves only its scratch files.
+  WriterOptions wo;
+  wo.overwrite = options.force;
+  wo.temp_path = workdir / "bundle.h5.partial";
+  std::optional<BundleWriter> bundle;
+  std::string damaged_note;
+  try {
+    bundle.emplace(output, attributes, wo);
+    // The records an interrupted run saved, in order. A damaged scratch file (e.g. after a power
+    // cut) is made again, with everything after it.
+    for (std::uint64_t k = range.begin; k < next; ++k) {
+      const fs::path path = workdir / scratch_name(k);
+      std::optional<ScratchEntry> entry;
+      try {
+        entry = load_scratch(path);
+        const std::uint64_t index = entry->record ? entry->record->row.record_index : entry->skipped->record_index;
+        if (index != k) throw RuntimeFailure(fmt::format("{}: holds record {}, not {}", path.string(), index, k));
+      } catch (const RuntimeFailure& e) {
+        damaged_note = fmt::format("generate: {}; making records {} to {} again", e.what(), k, next - 1);
+        for (std::uint64_t j = k; j < next; ++j) fs::remove(workdir / scratch_name(j));
+        next = k;
+        break;
+      }
+      if (entry->record) {
+        bundle->write_staged(*entry->record);
+      } else {
+        bundle->add_skipped(*entry->skipped);
+        ++result.records_skipped;
+      }
+    }
+  } catch (const RuntimeFailure& e) {
+    throw write_failure(e);
+  }
+  result.records_written = bundle->records_written();
+
   Progress progress(options.progress, range.size(), next - range.begin);
+  if (!damaged_note.empty()) progress.note(damaged_note);
   if (options.resume)
     progress.note(next > range.begin ? fmt::format("generate: resuming at record {} ({} of {} already done)", next,
                                                    next - range.begin, range.size())
                                      : "generate: nothing to resume; starting from the first record");
 
-  GenerateResult result;
-  result.output = output;
-  SignalScope signals;
   unsigned threads = options.threads ? options.threads : std::max(1u, std::thread::hardware_concurrency());
   auto synthesize = options.synthesize ? options.synthesize
                                        : [](const SubjectSpec& s) { return gen::synthesize_record(s); };
-  RecordPipeline pipeline(recipe, {next, range.end}, threads, synthesize, attributes);
-
-  // The single writer: one scratch bundle per record, in record order.
-  auto write = [&](std::uint64_t i, const Outcome& out) {
-    WriterOptions wo;
-    wo.temp_path = workdir / (scratch_name(i) + ".partial");
-    wo.overwrite = true;
-    wo.durable = false;
-    BundleWriter writer(workdir / scratch_name(i), attributes, wo);
-    if (out.record) writer.write_record(*out.record, *out.encoded);
-    else writer.add_skipped({out.record_id, i, out.failure});
-    writer.finish();
-  };
+  RecordPipeline pipeline(recipe, {next, range.end}, threads, synthesize, attributes, workdir, skip_failures);
 
   std::uint64_t i = next;
   try {
@@ -376,16 +397,19 @@ GenerateResult generate(const GenerateOptions& options) {
               out->record_id, out->failure, i - range.begin, workdir.string()));
         progress.note(fmt::format("generate: skipped record {}: {}", out->record_id, out->failure));
       }
-      write(i, *out);
+      if (!out->save_error.empty()) throw RuntimeFailure(out->save_error);
       if (out->record) {
+        bundle->write_staged(*out->record);
         ++result.records_written;
-        const Record& r = *out->record;
-        progress.advance(r.sample_rate_hz > 0 ? double(r.pcg.n_samples) / r.sample_rate_hz : 0);
+        progress.advance(out->record->row.duration_s);
       } else {
+        bundle->add_skipped({out->record_id, i, out->failure});
         ++result.records_skipped;
         progress.advance(0);
       }
     }
+    pipeline.stop_and_join();
+    if (i == range.end) bundle->finish();
   } catch (const StopOnFailure&) {
     pipeline.stop_and_join();
     progress.finish();
@@ -393,50 +417,19 @@ GenerateResult generate(const GenerateOptions& options) {
   } catch (const RuntimeFailure& e) {
     pipeline.stop_and_join();
     progress.finish();
-    throw RuntimeFailure(fmt::format("{}\nno output written; completed records are kept in {}: fix the cause and "
-                                     "run `{}`", e.what(), workdir.string(), resume_hint(options, output)));
+    throw write_failure(e);
   }
-  pipeline.stop_and_join();
+  progress.finish();
 
   if (i < range.end) {
-    progress.finish();
+    bundle.reset();  // abandons the unfinished bundle
     result.interrupted = true;
     fmt::print(stderr, "generate: interrupted by signal {}: {} of {} records are saved in {}\n"
                "generate: to continue, run `{}`\n", g_signal.load(), i - range.begin, range.size(),
                workdir.string(), resume_hint(options, output));
     return result;
   }
-
-  // Assemble the final bundle from the scratch files, in record order.
-  std::vector<fs::path> parts;
-  for (std::uint64_t k = range.begin; k < range.end; ++k) parts.push_back(workdir / scratch_name(k));
-  MergeSpec spec;
-  spec.expect = range;
-  spec.shard = options.shard;
-  spec.overwrite = options.force;
-  spec.temp_path = workdir / "bundle.h5.partial";
-  try {
-    check_room_for(parts, output);
-    if (parts.empty()) {
-      WriterOptions wo;
-      wo.overwrite = options.force;
-      wo.temp_path = spec.temp_path;
-      BundleWriter empty(output, attributes, wo);
-      empty.finish();
-    } else {
-      merge_bundles(parts, output, spec);
-    }
-  } catch (const RuntimeFailure& e) {
-    progress.finish();
-    throw RuntimeFailure(fmt::format("{}\nno output written; the completed records are kept in {}: free space and "
-                                     "run `{}`", e.what(), workdir.string(), resume_hint(options, output)));
-  }
   fs::remove_all(workdir);
-  progress.finish();
-  // Counts over the whole run, including records of an earlier interrupted part.
-  BundleReader done(output);
-  result.records_written = done.index().size();
-  result.records_skipped = done.skipped().size();
   return result;
 }
 

@@ -93,6 +93,7 @@ Id bounded_cache_fapl() {
   config.min_size = std::min<std::size_t>(config.min_size, config.initial_size);
   config.max_size = kMetadataCacheBytes;
   check_status(H5Pset_mdc_config(fapl, &config), "metadata cache configuration");
+  check_status(H5Pset_meta_block_size(fapl, kMetadataBlockBytes), "metadata block size");
   return fapl;
 }
 
@@ -102,8 +103,15 @@ Id group_plist() {
   return plist;
 }
 
-Id make_group(hid_t parent, const std::string& name) {
+std::size_t name_heap_bytes(const std::vector<std::string>& names) {
+  std::size_t bytes = 8;  // the heap's empty first name
+  for (const std::string& n : names) bytes += (n.size() + 1 + 7) / 8 * 8;
+  return bytes;
+}
+
+Id make_group(hid_t parent, const std::string& name, std::size_t name_heap_hint) {
   Id plist = group_plist();
+  if (name_heap_hint > 0) check_status(H5Pset_local_heap_size_hint(plist, name_heap_hint), "group properties");
   return Id(check(H5Gcreate2(parent, name.c_str(), H5P_DEFAULT, plist, H5P_DEFAULT), "create group " + name));
 }
 
@@ -290,11 +298,12 @@ hid_t file_type_of(StoredType t) {
     case StoredType::i16: return H5T_STD_I16LE;
     case StoredType::i32: return H5T_STD_I32LE;
     case StoredType::f32: return H5T_IEEE_F32LE;
+    case StoredType::packed: break;
   }
   return -1;
 }
 
-Id write_encoded(hid_t parent, const std::string& name, const EncodedArray& a) {
+Id write_encoded(hid_t parent, const std::string& name, const EncodedArray& a, hid_t file_type) {
   std::vector<hsize_t> dims = a.one_d ? std::vector<hsize_t>{a.cols} : std::vector<hsize_t>{a.rows, a.cols};
   Id space(check(H5Screate_simple(static_cast<int>(dims.size()), dims.data(), nullptr), name));
   Id dcpl(check(H5Pcreate(H5P_DATASET_CREATE), name));
@@ -308,7 +317,7 @@ Id write_encoded(hid_t parent, const std::string& name, const EncodedArray& a) {
       check_status(H5Pset_deflate(dcpl, static_cast<unsigned>(a.filters.deflate_level)), name);
     if (a.filters.fletcher32) check_status(H5Pset_fletcher32(dcpl), name);
   }
-  Id ds(check(H5Dcreate2(parent, name.c_str(), file_type_of(a.type), space, H5P_DEFAULT, dcpl, H5P_DEFAULT), name));
+  Id ds(check(H5Dcreate2(parent, name.c_str(), file_type >= 0 ? file_type : file_type_of(a.type), space, H5P_DEFAULT, dcpl, H5P_DEFAULT), name));
   if (!chunked) return ds;
   const std::size_t per_row = a.chunks_per_row();
   for (std::size_t k = 0; k < a.chunks.size(); ++k) {
@@ -328,21 +337,14 @@ std::vector<std::uint64_t> shape(hid_t dataset) {
   return {dims.begin(), dims.end()};
 }
 
-void read_all(hid_t dataset, hid_t mem_type, void* out, const std::string& what) {
+void read_all(hid_t dataset, hid_t mem_type, void* out, const std::string& what, hid_t dxpl) {
   std::uint64_t n = 1;
   for (auto d : shape(dataset)) n *= d;
   if (n == 0) return;
-  check_status(H5Dread(dataset, mem_type, H5S_ALL, H5S_ALL, H5P_DEFAULT, out), what);
+  check_status(H5Dread(dataset, mem_type, H5S_ALL, H5S_ALL, dxpl, out), what);
 }
 
 namespace {
-
-struct Packed {
-  Id type;
-  std::vector<std::size_t> offsets;
-  std::vector<std::size_t> widths;  // string widths
-  std::size_t size = 0;
-};
 
 hid_t file_type_of(ColumnKind k) {
   switch (k) {
@@ -357,67 +359,23 @@ hid_t file_type_of(ColumnKind k) {
   return -1;
 }
 
-// Packed little-endian compound; the same layout serves as file and memory type on x86-64/arm64.
-Packed packed_type(const Table& table) {
-  Packed p;
-  std::vector<Id> members;
-  for (const Column& c : table.columns) {
-    std::size_t w = 0;
-    if (c.kind == ColumnKind::str) {
-      w = 1;
-      for (const std::string& s : c.strings) w = std::max(w, s.size());
-      members.push_back(fixed_string_type(w));
-    } else {
-      members.emplace_back(check(H5Tcopy(file_type_of(c.kind)), "column type"));
-    }
-    p.offsets.push_back(p.size);
-    p.widths.push_back(w);
-    p.size += H5Tget_size(members.back());
-  }
-  p.type = Id(check(H5Tcreate(H5T_COMPOUND, std::max<std::size_t>(p.size, 1)), "compound type"));
-  for (std::size_t i = 0; i < table.columns.size(); ++i)
-    check_status(H5Tinsert(p.type, table.columns[i].name.c_str(), p.offsets[i], members[i]), "compound type");
-  return p;
-}
-
-template <typename T>
-void put(unsigned char* dst, T v) {
-  std::memcpy(dst, &v, sizeof v);
-}
-
 }  // namespace
 
-Id write_table(hid_t parent, const std::string& name, const Table& table, int gzip_level) {
-  Packed p = packed_type(table);
-  std::size_t n = table.rows();
-  std::vector<unsigned char> buf(n * p.size, 0);
-  for (std::size_t ci = 0; ci < table.columns.size(); ++ci) {
-    const Column& c = table.columns[ci];
-    if (c.size() != n) throw std::logic_error("table " + name + ": ragged column " + c.name);
-    for (std::size_t r = 0; r < n; ++r) {
-      unsigned char* dst = buf.data() + r * p.size + p.offsets[ci];
-      switch (c.kind) {
-        case ColumnKind::i8: put(dst, static_cast<std::int8_t>(c.ints[r])); break;
-        case ColumnKind::u8: put(dst, static_cast<std::uint8_t>(c.ints[r])); break;
-        case ColumnKind::i32: put(dst, static_cast<std::int32_t>(c.ints[r])); break;
-        case ColumnKind::i64: put(dst, static_cast<std::int64_t>(c.ints[r])); break;
-        case ColumnKind::u64: put(dst, static_cast<std::uint64_t>(c.ints[r])); break;
-        case ColumnKind::f64: put(dst, c.reals[r]); break;
-        case ColumnKind::str: std::memcpy(dst, c.strings[r].data(), c.strings[r].size()); break;
-      }
-    }
+// Packed little-endian compound; the same layout serves as file and memory type on x86-64/arm64.
+Id compound_type(const std::vector<TableMember>& members, std::size_t row_bytes) {
+  Id type(check(H5Tcreate(H5T_COMPOUND, std::max<std::size_t>(row_bytes, 1)), "compound type"));
+  for (const TableMember& m : members) {
+    Id member = m.kind == ColumnKind::str ? fixed_string_type(m.bytes) : Id(check(H5Tcopy(file_type_of(m.kind)), "column type"));
+    check_status(H5Tinsert(type, m.name.c_str(), m.offset, member), "compound type");
   }
-  ArraySpec spec;
-  spec.rows = 1;
-  spec.cols = n;
-  spec.one_d = true;
-  spec.chunk_cols = 4096;
-  spec.gzip_level = gzip_level;
-  spec.shuffle = true;
-  Id ds = write_array(parent, name, buf.data(), p.type, p.type, spec);
-  std::vector<std::string> units;
-  for (const Column& c : table.columns) units.push_back(c.unit);
-  set_attr(ds, "units", units);
+  return type;
+}
+
+Id write_table(hid_t parent, const std::string& name, const Table& table, const ChunkFilters& filters) {
+  const EncodedTable e = encode_table(table, filters);
+  Id type = compound_type(e.members, e.rows.element_bytes);
+  Id ds = write_encoded(parent, name, e.rows, type);
+  set_attr(ds, "units", e.units);
   return ds;
 }
 
@@ -425,6 +383,13 @@ Table read_table(hid_t dataset, const std::string& what) {
   Id ftype(check(H5Dget_type(dataset), what));
   if (H5Tget_class(ftype) != H5T_COMPOUND) throw RuntimeFailure(what + ": not a compound table");
   Table table;
+  const std::size_t n = static_cast<std::size_t>(shape(dataset).at(0));
+  // Conversion buffers sized to the table: HDF5's default (1 MiB, the background buffer zeroed
+  // on every read) made reading a small table cost about 1 MiB of memset per column.
+  Id dxpl(check(H5Pcreate(H5P_DATASET_XFER), what));
+  const std::size_t row_bytes = std::max<std::size_t>(H5Tget_size(ftype), 8);
+  const std::size_t buffer_bytes = std::clamp<std::size_t>(std::max<std::size_t>(n, 1) * row_bytes, row_bytes, 1u << 20);
+  check_status(H5Pset_buffer(dxpl, buffer_bytes, nullptr, nullptr), what);
   int members = H5Tget_nmembers(ftype);
   for (int i = 0; i < members; ++i) {
     char* mname = H5Tget_member_name(ftype, static_cast<unsigned>(i));
@@ -438,7 +403,6 @@ Table read_table(hid_t dataset, const std::string& what) {
     else if (cls != H5T_FLOAT) continue;  // unknown member classes are skipped
     Column& col = table.add(name, kind);
     // Read one member at a time into native storage through a single-member compound.
-    std::size_t n = static_cast<std::size_t>(shape(dataset).at(0));
     std::size_t width = kind == ColumnKind::str ? H5Tget_size(mtype) : 8;
     Id native = kind == ColumnKind::str ? fixed_string_type(width)
                 : Id(check(H5Tcopy(kind == ColumnKind::f64   ? H5T_NATIVE_DOUBLE
@@ -448,7 +412,7 @@ Table read_table(hid_t dataset, const std::string& what) {
     Id one(check(H5Tcreate(H5T_COMPOUND, width), what));
     check_status(H5Tinsert(one, name.c_str(), 0, native), what);
     std::vector<unsigned char> buf(n * width, 0);
-    read_all(dataset, one, buf.data(), what);
+    read_all(dataset, one, buf.data(), what, dxpl);
     for (std::size_t r = 0; r < n; ++r) {
       const unsigned char* src = buf.data() + r * width;
       if (kind == ColumnKind::str) {

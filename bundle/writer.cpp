@@ -7,13 +7,13 @@
 #include <cmath>
 #include <cstdlib>
 #include <ctime>
-#include <set>
 
 #include <fmt/format.h>
 
 #include "bundle/hdf5_io.hpp"
 #include "bundle/reader_impl.hpp"
 #include "bundle/schema.hpp"
+#include "bundle/staged_record.hpp"
 #include "core/error.hpp"
 
 namespace stethogen::bundle {
@@ -33,16 +33,6 @@ std::string now_utc() {
   return buf;
 }
 
-std::vector<std::string> site_names(const std::vector<Site>& sites) {
-  std::vector<std::string> out;
-  for (Site s : sites) out.emplace_back(name(s));
-  return out;
-}
-
-std::int32_t full_scale(SampleFormat f) {
-  return f == SampleFormat::int16 ? kInt16FullScale : kInt24FullScale;
-}
-
 void fsync_file(const fs::path& path) {
   int fd = ::open(path.c_str(), O_RDONLY);
   if (fd < 0) return;
@@ -60,81 +50,63 @@ struct BundleWriter::Impl {
   h5::Id file, records;
   std::vector<IndexRow> index;
   std::vector<SkippedRecord> skipped;
-  std::set<std::string> ids;
   bool open = false;
 
   std::string where(const std::string& object) const { return fmt::format("{}: {}", temp.string(), object); }
 
-  // A public (blinded) bundle must not reveal the state; its records read "withheld".
-  std::string state_name(const SubjectSpec& s) const {
-    return attributes.content == "public" ? std::string(kWithheldState) : std::string(name(s.state));
+  // Asked of the file rather than kept in a set, so memory does not grow with the record count.
+  bool has_record(const std::string& id) const { return H5Lexists(records, id.c_str(), H5P_DEFAULT) > 0; }
+
+  ChunkFilters table_filters() const { return bundle::table_filters(attributes.compression); }
+
+  static void write_attributes(hid_t obj, const std::vector<StagedAttribute>& attributes) {
+    using Kind = StagedAttribute::Kind;
+    for (const StagedAttribute& a : attributes) switch (a.kind) {
+        case Kind::str: h5::set_attr(obj, a.name, a.strings.at(0)); break;
+        case Kind::strs: h5::set_attr(obj, a.name, a.strings); break;
+        case Kind::i32: h5::set_attr_i32(obj, a.name, static_cast<std::int32_t>(a.ints.at(0))); break;
+        case Kind::i64: h5::set_attr_i64(obj, a.name, a.ints.at(0)); break;
+        case Kind::u64: h5::set_attr_u64(obj, a.name, static_cast<std::uint64_t>(a.ints.at(0))); break;
+        case Kind::f64: h5::set_attr_f64(obj, a.name, a.real); break;
+        case Kind::i32s: h5::set_attr_i32s(obj, a.name, {a.ints.begin(), a.ints.end()}); break;
+      }
   }
 
-  // Deflate level of the tables (small; shuffle + deflate unless compression = "none").
-  int table_level() const { return filters_for(DatasetRole::table, attributes.sample_format, attributes.compression).deflate_level; }
-
-  void write_signal(hid_t group, const std::string& name, const EncodedArray& array, const Record& r) {
-    h5::Id ds = h5::write_encoded(group, name, array);
-    SampleFormat fmt_ = attributes.sample_format;
-    double scale = 1.0;
-    if (fmt_ != SampleFormat::float32) {
-      const std::int32_t full = full_scale(fmt_);
-      scale = 1.0 / full;
-      h5::set_attr_i32s(ds, "valid_range", {-full, full});
+  // The record's group, then its objects in order; a subgroup stays open for the datasets in it.
+  // The names of the members of the group at `path` ("" = the record's group).
+  static std::vector<std::string> member_names(const StagedRecord& r, const std::string& path) {
+    std::vector<std::string> names;
+    for (const StagedObject& o : r.objects) {
+      const std::size_t slash = o.path.rfind('/');
+      const std::string parent = slash == std::string::npos ? std::string() : o.path.substr(0, slash);
+      if (parent == path) names.push_back(slash == std::string::npos ? o.path : o.path.substr(slash + 1));
     }
-    h5::set_attr_i32(ds, "sample_rate_hz", r.sample_rate_hz);
-    h5::set_attr(ds, "sites", site_names(r.sites));
-    h5::set_attr(ds, "unit", "full_scale");
-    h5::set_attr(ds, "sample_format", std::string(stethogen::name(fmt_)));
-    h5::set_attr_f64(ds, "scale", scale);
+    return names;
   }
 
-  void write_hemodynamics(hid_t group, const HemodynamicTraces& h, const std::vector<EncodedArray>& channels) {
-    h5::Id g = h5::make_group(group, "hemodynamics");
-    h5::set_attr_f64(g, "sample_rate_hz", h.sample_rate_hz);
-    h5::set_attr(g, "channels", h.names);
-    for (std::size_t c = 0; c < channels.size(); ++c) {
-      h5::Id ds = h5::write_encoded(g, h.names[c], channels[c]);
-      h5::set_attr(ds, "unit", c < h.units.size() ? h.units[c] : std::string{});
-      h5::set_attr_f64(ds, "sample_rate_hz", h.sample_rate_hz);
+  void write(const StagedRecord& r) {
+    h5::Id g = h5::make_group(records, r.row.record_id, h5::name_heap_bytes(member_names(r, "")));
+    write_attributes(g, r.attributes);
+    std::string open_path;
+    h5::Id open_group;
+    for (const StagedObject& o : r.objects) {
+      const std::size_t slash = o.path.rfind('/');
+      const std::string parent_path = slash == std::string::npos ? std::string() : o.path.substr(0, slash);
+      const std::string leaf = slash == std::string::npos ? o.path : o.path.substr(slash + 1);
+      if (!parent_path.empty() && parent_path != open_path) {
+        open_group = h5::open_group(g, parent_path, where(parent_path));
+        open_path = parent_path;
+      }
+      const hid_t parent = parent_path.empty() ? hid_t(g) : hid_t(open_group);
+      if (o.group) {
+        h5::Id sub = h5::make_group(parent, leaf, h5::name_heap_bytes(member_names(r, o.path)));
+        write_attributes(sub, o.attributes);
+        continue;
+      }
+      h5::Id type = o.members.empty() ? h5::Id() : h5::compound_type(o.members, o.data.element_bytes);
+      h5::Id ds = h5::write_encoded(parent, leaf, o.data, type.valid() ? hid_t(type) : hid_t(-1));
+      write_attributes(ds, o.attributes);
     }
-  }
-
-  void write(const Record& r, const EncodedRecord& e, const RecordParts& parts, const std::string& id) {
-    if (e.format != attributes.sample_format || e.compression != attributes.compression)
-      throw std::logic_error("BundleWriter: record encoded for another sample format or compression");
-    const SubjectSpec& s = r.subject;
-    h5::Id g = h5::make_group(records, id);
-    h5::set_attr_u64(g, "record_index", s.record_index);
-    h5::set_attr(g, "population", s.population);
-    h5::set_attr(g, "state", state_name(s));
-    h5::set_attr_f64(g, "exercise_intensity", s.exercise_intensity);
-    h5::set_attr_f64(g, "severity", s.severity);
-    h5::set_attr(g, "sensor", std::string(name(s.sensor)));
-    h5::set_attr_i32(g, "sample_rate_hz", r.sample_rate_hz);
-    h5::set_attr(g, "sites", site_names(r.sites));
-    h5::set_attr_f64(g, "duration_s", r.sample_rate_hz > 0 ? double(r.pcg.n_samples) / r.sample_rate_hz : 0.0);
-    h5::set_attr_f64(g, "snr_db", r.summary.snr_target_db);
-    h5::set_attr_f64(g, "snr_achieved_db", r.summary.snr_achieved_db);
-    h5::set_attr(g, "noise_profile", s.noise_profile_name);
-    h5::set_attr(g, "stationary_noise", r.summary.stationary_noise);
-
-    write_signal(g, "pcg", e.pcg, r);
-    if (parts.pcg_clean && e.has_pcg_clean) write_signal(g, "pcg_clean", e.pcg_clean, r);
-    if (parts.states && e.has_states) {
-      h5::Id ds = h5::write_encoded(g, "states", e.states);
-      h5::set_attr(ds, "labels", label_names());
-      h5::set_attr_i32(ds, "sample_rate_hz", r.sample_rate_hz);
-      h5::set_attr(ds, "sites", site_names(r.sites));
-    }
-    const int level = table_level();
-    if (parts.events) h5::write_table(g, "events", events_table(r.events), level);
-    if (parts.beats) h5::write_table(g, "beats", beats_table(r.beats), level);
-    if (parts.artifacts) {
-      h5::Id ds = h5::write_table(g, "artifacts", artifacts_table(r.artifacts, r.sample_rate_hz), level);
-      h5::set_attr_i32(ds, "sample_rate_hz", r.sample_rate_hz);
-    }
-    if (parts.hemodynamics && e.has_hemodynamics) write_hemodynamics(g, r.hemodynamics, e.hemodynamics);
   }
 
   void close_and_remove() noexcept {
@@ -202,22 +174,23 @@ void BundleWriter::write_record(const Record& record, const RecordParts& parts, 
 
 void BundleWriter::write_record(const Record& record, const EncodedRecord& encoded, const RecordParts& parts,
                                 const std::string& override_id) {
+  write_staged(stage_record(record, encoded, parts, staging_settings(impl_->attributes), override_id));
+}
+
+void BundleWriter::write_staged(const StagedRecord& record) {
   std::lock_guard guard(h5::lock());
   Impl& m = *impl_;
-  const std::string id = override_id.empty() ? record.subject.record_id : override_id;
+  const std::string& id = record.row.record_id;
   if (!m.open) throw std::logic_error("BundleWriter: write after finish/abandon");
   if (id.empty() || id.find('/') != std::string::npos || id == "." )
     throw InputError(fmt::format("record id '{}': must be non-empty and contain no '/'", id));
-  if (!m.ids.insert(id).second) throw InputError(fmt::format("{}: duplicate record id '{}'", m.target.string(), id));
+  if (m.has_record(id)) throw InputError(fmt::format("{}: duplicate record id '{}'", m.target.string(), id));
   try {
-    m.write(record, encoded, parts, id);
+    m.write(record);
   } catch (const RuntimeFailure& e) {
     throw RuntimeFailure(fmt::format("{}: record {}: {}", m.temp.string(), id, e.what()));
   }
-  IndexRow row = index_row(record);
-  row.record_id = id;
-  row.state = m.state_name(record.subject);
-  m.index.push_back(std::move(row));
+  m.index.push_back(record.row);
 }
 
 void BundleWriter::copy_record(const BundleReader& source, const std::string& record_id) {
@@ -226,7 +199,7 @@ void BundleWriter::copy_record(const BundleReader& source, const std::string& re
   if (!m.open) throw std::logic_error("BundleWriter: write after finish/abandon");
   const IndexRow* row = source.impl_->row(record_id);
   if (!row) throw InputError(fmt::format("{}: no record '{}'", source.path().string(), record_id));
-  if (!m.ids.insert(record_id).second)
+  if (m.has_record(record_id))
     throw InputError(fmt::format("{}: duplicate record id '{}'", source.path().string(), record_id));
   const std::string from = "/records/" + record_id;
   if (H5Ocopy(source.impl_->file, from.c_str(), m.records, record_id.c_str(), H5P_DEFAULT, H5P_DEFAULT) < 0)
@@ -255,7 +228,7 @@ void BundleWriter::write_string_table(const std::string& path, const StringTable
   }
   if (group.valid()) parent = group;
   try {
-    h5::write_table(parent, path.substr(last + 1), string_table(table), m.table_level());
+    h5::write_table(parent, path.substr(last + 1), string_table(table), m.table_filters());
   } catch (const RuntimeFailure& e) {
     throw RuntimeFailure(m.where(path) + ": " + e.what());
   }
@@ -266,8 +239,8 @@ void BundleWriter::finish() {
   Impl& m = *impl_;
   if (!m.open) throw std::logic_error("BundleWriter: finish after finish/abandon");
   try {
-    h5::write_table(m.file, "index", index_table(m.index), m.table_level());
-    h5::write_table(m.file, "skipped", skipped_table(m.skipped), m.table_level());
+    h5::write_table(m.file, "index", index_table(m.index), m.table_filters());
+    h5::write_table(m.file, "skipped", skipped_table(m.skipped), m.table_filters());
     m.records.reset();
     h5::check_status(H5Fflush(m.file, H5F_SCOPE_GLOBAL), "flush");
     if (!m.file.reset()) throw RuntimeFailure("close: " + h5::error_reason());

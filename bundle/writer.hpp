@@ -14,6 +14,7 @@ namespace stethogen::bundle {
 
 class BundleReader;
 struct EncodedRecord;
+struct StagedRecord;
 
 struct WriterOptions {
   // Temporary file; empty = "<target>.partial". Must be on the target's file system.
@@ -46,6 +47,9 @@ class BundleWriter {
   void write_record(const Record& record, const EncodedRecord& encoded, const RecordParts& parts = RecordParts::all(),
                     const std::string& record_id_override = {});
 
+  // Appends a record staged for this bundle (stage_record with staging_settings of its attributes).
+  void write_staged(const StagedRecord& record);
+
   // Copies /records/<record_id> of another bundle unchanged (raw compressed chunks) and its
   // /index row: merging shards this way gives the same bytes as writing the records directly.
   void copy_record(const BundleReader& source, const std::string& record_id);
@@ -72,8 +76,8 @@ class BundleWriter {
   std::unique_ptr<Impl> impl_;
 };
 
-// Samples per chunk along the sample axis, and the gzip level of compression = "compact" (chosen
-// by measurement, docs/bundle-format.md).
+// Most samples per chunk along the sample axis (a signal is split evenly: balanced_chunk), and
+// the gzip level of compression = "compact" (chosen by measurement, docs/bundle-format.md).
 inline constexpr std::size_t kPcgChunkSamples = 16384;
 inline constexpr int kGzipLevel = 4;
 // Half the fan-out of the chunk-index B-tree nodes (HDF5's istore_k; its default is 32).

@@ -209,7 +209,7 @@ TEST_CASE("a recipe changed during --resume is refused and the finished records 
   // non-interactive shell starts background jobs with SIGINT ignored.
   const std::string script = fmt::format(
       "cd {} || exit 1; {} generate night.toml -o night.h5 --threads 1 --quiet </dev/null >run.log 2>&1 & pid=$!; "
-      "for i in $(seq 1 3000); do ls night.h5.partial/rec-*.h5 >/dev/null 2>&1 && break; sleep 0.02; done; "
+      "for i in $(seq 1 3000); do ls night.h5.partial/rec-*.stg >/dev/null 2>&1 && break; sleep 0.02; done; "
       "kill -TERM $pid; wait $pid; echo $? > status.txt",
       test::shell_quote(dir.path().string()), test::shell_quote(std::getenv("STETHOGEN_BINARY")));
   REQUIRE(std::system(script.c_str()) == 0);
@@ -221,7 +221,7 @@ TEST_CASE("a recipe changed during --resume is refused and the finished records 
   fs::remove(dir.path() / "status.txt");
   const auto run_before = snapshot(dir.path() / "night.h5.partial");
   std::size_t finished = 0;
-  for (const auto& [name, content] : run_before) finished += name.starts_with("rec-") && name.ends_with(".h5");
+  for (const auto& [name, content] : run_before) finished += name.starts_with("rec-") && name.ends_with(".stg");
   CHECK(finished >= 1);
 
   std::ofstream(recipe) << tiny_recipe(400, /*seed=*/6);
