@@ -1,7 +1,10 @@
 #include "bundle/merge.hpp"
 
 #include <algorithm>
+#include <csignal>
 #include <optional>
+
+#include <sys/resource.h>
 
 #include <fmt/format.h>
 
@@ -28,6 +31,38 @@ std::string list_some(const std::vector<std::uint64_t>& indices) {
   if (indices.size() > 10) out += fmt::format(" and {} more", indices.size() - 10);
   return out;
 }
+
+// libhdf5 1.10 can crash inside H5Ocopy after a failed write, so the copy must not start unless
+// the output fits: within the file-size limit (ulimit -f) and the free space of its folder.
+// Records are copied with their chunks as they are, so the inputs' total size bounds the result.
+void check_room_for(const std::vector<fs::path>& inputs, const fs::path& output) {
+  std::uintmax_t needed = 0;
+  for (const fs::path& p : inputs) needed += fs::file_size(p);
+  needed += needed / 50 + (1u << 20);  // index, attributes, allocation slack
+  rlimit limit{};
+  if (::getrlimit(RLIMIT_FSIZE, &limit) == 0 && limit.rlim_cur != RLIM_INFINITY && needed > limit.rlim_cur)
+    throw RuntimeFailure(fmt::format("{}: File too large: the merged bundle needs about {} bytes, the file-size "
+                                     "limit (ulimit -f) is {} bytes", output.string(), needed, limit.rlim_cur));
+  const fs::path folder = output.has_parent_path() ? output.parent_path() : fs::path(".");
+  std::error_code ec;
+  const fs::space_info space = fs::space(folder, ec);
+  if (!ec && needed > space.available)
+    throw RuntimeFailure(fmt::format("{}: No space left on device: the merged bundle needs about {} bytes, {} has "
+                                     "{} free", output.string(), needed, folder.string(), space.available));
+}
+
+// A write past the file-size limit is then an error the writer reports and cleans up after,
+// instead of SIGXFSZ killing the process with the partial file left behind.
+class IgnoreFileSizeSignal {
+ public:
+  IgnoreFileSizeSignal() : old_(std::signal(SIGXFSZ, SIG_IGN)) {}
+  ~IgnoreFileSizeSignal() { std::signal(SIGXFSZ, old_); }
+  IgnoreFileSizeSignal(const IgnoreFileSizeSignal&) = delete;
+  IgnoreFileSizeSignal& operator=(const IgnoreFileSizeSignal&) = delete;
+
+ private:
+  void (*old_)(int);
+};
 
 }  // namespace
 
@@ -87,6 +122,8 @@ void merge_bundles(const std::vector<fs::path>& inputs, const fs::path& output, 
   attributes.created_utc.clear();
   attributes.shard_index = spec.shard.count > 1 ? static_cast<std::int32_t>(spec.shard.index) : -1;
   attributes.shard_count = spec.shard.count > 1 ? static_cast<std::int32_t>(spec.shard.count) : 0;
+  check_room_for(inputs, output);
+  const IgnoreFileSizeSignal file_size_errors;
   WriterOptions options;
   options.overwrite = spec.overwrite;
   options.temp_path = spec.temp_path;

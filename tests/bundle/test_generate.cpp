@@ -239,3 +239,23 @@ TEST_CASE("a full disk is a clear error and leaves no final file", "[generate][s
   REQUIRE(r.output.find("no output written") != std::string::npos);
   REQUIRE_FALSE(fs::exists(out));
 }
+
+TEST_CASE("merge onto a full disk is a clear error and leaves nothing behind", "[merge][safety]") {
+  TempDir dir;
+  std::uintmax_t parts_bytes = 0;
+  for (int k = 1; k <= 2; ++k) {
+    const fs::path part = dir.path() / ("part-" + std::to_string(k) + ".h5");
+    REQUIRE(run(generate_cmd(small_recipe(), part, "--shard " + std::to_string(k) + "/2")).exit_code == 0);
+    parts_bytes += fs::file_size(part);
+  }
+  const fs::path out = dir.path() / "merged.h5";
+  // A file-size limit (1024-byte blocks) of half the shards' size: the merged bundle cannot fit.
+  const std::string limit = std::to_string(parts_bytes / 2048);
+  RunResult r = run("ulimit -f " + limit + "; " + binary() + " merge " + quote(dir.path() / "part-1.h5") + " " +
+                    quote(dir.path() / "part-2.h5") + " -o " + quote(out));
+  INFO(r.output);
+  REQUIRE(r.exit_code == 1);
+  REQUIRE(r.output.find("File too large") != std::string::npos);
+  REQUIRE_FALSE(fs::exists(out));
+  REQUIRE_FALSE(fs::exists(out.string() + ".partial"));
+}
