@@ -30,8 +30,9 @@ void compare_engine_settings(const recipe::Recipe& recipe, double max_step_s, do
       if (f.valve == e.valve && f.opening == e.opening) best = std::min(best, std::fabs(f.time_s - e.time_s));
     worst = std::max(worst, best);
   }
-  fmt::print("\nEngine settings (record 0): default max step 5 ms, tolerance 1e-5: {:.1f} ms CPU, {} steps\n",
-             1e3 * (c1 - c0), base.result.ode_steps);
+  const gen::IntegratorSettings defaults;
+  fmt::print("\nEngine settings (record 0): default max step {:.1f} ms, tolerance {:.0e}: {:.1f} ms CPU, {} steps\n",
+             1e3 * defaults.max_step_s, defaults.rel_tolerance, 1e3 * (c1 - c0), base.result.ode_steps);
   fmt::print("  max step {:.1f} ms, tolerance {:.0e}: {:.1f} ms CPU, {} steps, {} vs {} transitions, largest shift "
              "{:.4f} ms\n",
              1e3 * max_step_s, tolerance, 1e3 * (c2 - c1), alt.result.ode_steps, b.size(), a.size(), 1e3 * worst);

@@ -52,7 +52,7 @@ def integrate(case):
         ev = (lambda i: (lambda t, x: x[i] - thr))(LEAFLET[name])
         events.append(ev)
     sol = solve_ivp(m.rhs, (case["t0"], case["t1"]), np.array(case["state"]), method="RK45", rtol=1e-5, atol=1e-5,
-                    max_step=0.005, first_step=1e-4, dense_output=True, events=events)
+                    max_step=0.010, first_step=1e-4, dense_output=True, events=events)
     if not sol.success:
         raise RuntimeError(sol.message)
     transitions = []

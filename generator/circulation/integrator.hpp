@@ -15,7 +15,9 @@ namespace stethogen::gen {
 struct IntegratorSettings {
   double abs_tolerance = 1e-5;
   double rel_tolerance = 1e-5;
-  double max_step_s = 0.005;       // keeps activation onsets and the sample grid well resolved
+  // Bounds the steps through the long, smooth diastole; accuracy sets the step elsewhere. 5 ms
+  // cost 8 % more RHS evaluations for valve transitions within 0.07 ms of these.
+  double max_step_s = 0.010;
   double min_step_s = 1e-9;        // a smaller accepted step counts as a stall
   std::uint64_t max_steps = 2'000'000;
 };

@@ -43,8 +43,8 @@ CirculationModel::ValveCoefficients CirculationModel::coefficients(const ValvePa
 
 // Mynard et al. 2012: dp = B q|q| + L dq/dt over A_eff = A_closed + (A_open - A_closed) zeta;
 // the leaflets open at (1 - zeta) K_vo (dp - dp_open) above dp_open and close at
-// zeta K_vc (dp - dp_close) below dp_close.
-void CirculationModel::valve(const ValveCoefficients& c, double dp, double q, double zeta, double& dq,
+// zeta K_vc (dp - dp_close) below dp_close. Inlined into rhs, its only caller (four calls each).
+[[gnu::always_inline]] inline void CirculationModel::valve(const ValveCoefficients& c, double dp, double q, double zeta, double& dq,
                              double& dzeta) {
   const double z = std::clamp(zeta, 0.0, 1.0);
   const double area = c.area_closed_cm2 + (c.area_open_cm2 - c.area_closed_cm2) * z;

@@ -1,7 +1,9 @@
 #include "generator/circulation/simulate.hpp"
 
 #include <algorithm>
+#include <array>
 #include <cmath>
+#include <vector>
 
 #include <fmt/format.h>
 
@@ -101,35 +103,36 @@ CirculationState run_in(const EngineSetup& e, const SubjectSpec& subject, const 
                          kRunInToleranceMl));
 }
 
-void push_sample(HemodynamicSeries& s, const CirculationState& x, const ModelOutputs& o, double phase) {
-  s.p_lv.push_back(o.p_lv);
-  s.p_rv.push_back(o.p_rv);
-  s.p_la.push_back(o.p_la);
-  s.p_ra.push_back(o.p_ra);
-  s.p_ao.push_back(o.p_ao);
-  s.p_pa.push_back(o.p_pa);
-  s.p_thorax.push_back(o.p_thorax);
-  s.v_lv.push_back(x[kVlv]);
-  s.v_rv.push_back(x[kVrv]);
-  s.v_la.push_back(x[kVla]);
-  s.v_ra.push_back(x[kVra]);
-  s.q_mitral.push_back(x[kQmi]);
-  s.q_tricuspid.push_back(x[kQtr]);
-  s.q_aortic.push_back(x[kQao]);
-  s.q_pulmonic.push_back(x[kQpu]);
-  s.leaflet_mitral.push_back(x[kZmi]);
-  s.leaflet_tricuspid.push_back(x[kZtr]);
-  s.leaflet_aortic.push_back(x[kZao]);
-  s.leaflet_pulmonic.push_back(x[kZpu]);
-  s.resp_phase.push_back(phase);
+std::array<std::vector<double>*, 20> series_columns(HemodynamicSeries& s) {
+  return {&s.p_lv, &s.p_rv, &s.p_la, &s.p_ra, &s.p_ao, &s.p_pa, &s.p_thorax, &s.v_lv, &s.v_rv, &s.v_la,
+          &s.v_ra, &s.q_mitral, &s.q_tricuspid, &s.q_aortic, &s.q_pulmonic, &s.leaflet_mitral,
+          &s.leaflet_tricuspid, &s.leaflet_aortic, &s.leaflet_pulmonic, &s.resp_phase};
 }
 
-void reserve(HemodynamicSeries& s, std::size_t n) {
-  for (auto* v : {&s.p_lv, &s.p_rv, &s.p_la, &s.p_ra, &s.p_ao, &s.p_pa, &s.p_thorax, &s.v_lv, &s.v_rv, &s.v_la,
-                  &s.v_ra, &s.q_mitral, &s.q_tricuspid, &s.q_aortic, &s.q_pulmonic, &s.leaflet_mitral,
-                  &s.leaflet_tricuspid, &s.leaflet_aortic, &s.leaflet_pulmonic, &s.resp_phase})
-    v->reserve(n);
-}
+// Samples gathered column by column and appended to the series a block at a time: twenty
+// push_backs per sample (a capacity check and an end-pointer update each) cost more.
+class SeriesBlock {
+ public:
+  void add(const CirculationState& x, const ModelOutputs& o, double phase) {
+    // The order of series_columns.
+    const double row[kColumns] = {o.p_lv,  o.p_rv,  o.p_la,  o.p_ra,  o.p_ao,  o.p_pa,  o.p_thorax,
+                                  x[kVlv], x[kVrv], x[kVla], x[kVra], x[kQmi], x[kQtr], x[kQao],
+                                  x[kQpu], x[kZmi], x[kZtr], x[kZao], x[kZpu], phase};
+    for (int c = 0; c < kColumns; ++c) values_[c][rows_] = row[c];
+    ++rows_;
+  }
+  bool full() const { return rows_ == kRows; }
+  void flush_into(HemodynamicSeries& s) {
+    const auto columns = series_columns(s);
+    for (int c = 0; c < kColumns; ++c) columns[c]->insert(columns[c]->end(), values_[c], values_[c] + rows_);
+    rows_ = 0;
+  }
+
+ private:
+  static constexpr int kColumns = 20, kRows = 256;
+  double values_[kColumns][kRows];
+  int rows_ = 0;
+};
 
 constexpr Valve kValves[4] = {Valve::mitral, Valve::tricuspid, Valve::aortic, Valve::pulmonic};
 constexpr int kLeaflet[4] = {kZmi, kZtr, kZao, kZpu};
@@ -172,7 +175,9 @@ EngineRun run_engine(const SubjectSpec& subject, const IntegratorSettings& setti
   s.rate_hz = kSeriesRateHz;
   s.t0_s = series_begin;
   const std::size_t n_samples = static_cast<std::size_t>(std::floor((series_end - series_begin) * kSeriesRateHz)) + 1;
-  reserve(s, n_samples);
+  for (std::vector<double>* column : series_columns(s)) column->reserve(n_samples);
+  SeriesBlock block;
+  std::size_t samples_taken = 0;
   CirculationState previous = integ.state(), x;
   ModelOutputs o;
   // Beats whose contraction is still ahead get their preload-dependent durations once the
@@ -227,14 +232,16 @@ EngineRun run_engine(const SubjectSpec& subject, const IntegratorSettings& setti
     }
     previous = now;
     if (t_prev < series_begin && series_begin <= t_now) integ.state_at(series_begin, run.series_start_state);
-    while (s.size() < n_samples) {
-      const double t = s.time_at(s.size());
+    for (; samples_taken < n_samples; ++samples_taken) {
+      const double t = s.time_at(samples_taken);
       if (t > t_now) break;
       integ.state_at(t, x);
       model.outputs(x, t, o);
-      push_sample(s, x, o, run.rhythm.respiration.phase(t, breath_hint));
+      block.add(x, o, run.rhythm.respiration.phase(t, breath_hint));
+      if (block.full()) block.flush_into(s);
     }
   });
+  block.flush_into(s);
   std::sort(r.transitions.begin(), r.transitions.end(),
             [](const ValveTransition& a, const ValveTransition& b) { return a.time_s < b.time_s; });
   r.ode_steps += integ.steps();
