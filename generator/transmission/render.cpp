@@ -63,9 +63,8 @@ struct SiteSegment {
   std::vector<SoundTiming> member_timing;
 };
 
-// Two doubles in one vector register (GCC vector extension: packed SSE2 on x86-64).
+// Two doubles in one vector register (vector extension of GCC and clang: packed SSE2 on x86-64).
 using Pair = double __attribute__((vector_size(16)));
-using PairIndex = long long __attribute__((vector_size(16)));
 
 // The largest std::norm(z[i]) for lo <= i < hi (0 if none), and with Add sum[i] += z[i] in the
 // same pass: two samples per vector, two running maxima.
@@ -83,8 +82,8 @@ double largest_power(const Complex* z, Complex* sum, std::size_t lo, std::size_t
       std::memcpy(static_cast<void*>(sum + i), acc, sizeof acc);
     }
     for (int h = 0; h < 2; ++h) {
-      const Pair re = __builtin_shuffle(v[2 * h], v[2 * h + 1], PairIndex{0, 2});
-      const Pair im = __builtin_shuffle(v[2 * h], v[2 * h + 1], PairIndex{1, 3});
+      const Pair re = __builtin_shufflevector(v[2 * h], v[2 * h + 1], 0, 2);
+      const Pair im = __builtin_shufflevector(v[2 * h], v[2 * h + 1], 1, 3);
       const Pair p = re * re + im * im;  // std::norm, per lane
       m[h] = p > m[h] ? p : m[h];
     }

@@ -145,7 +145,6 @@ SoundTiming measure_analytic(const std::complex<double>* z, std::size_t lo, std:
   // Two norms per vector (the same products and sum as std::norm).
   auto at_least = [z, lo](std::size_t from, std::size_t to, double level) {
     using Pair = double __attribute__((vector_size(16)));
-    using PairIndex = long long __attribute__((vector_size(16)));
     if (from >= to) return to;
     if (from < lo) {
       if (level <= 0) return from;  // the zeros before lo
@@ -155,7 +154,7 @@ SoundTiming measure_analytic(const std::complex<double>* z, std::size_t lo, std:
       Pair a, b;
       std::memcpy(&a, z + from, sizeof a);
       std::memcpy(&b, z + from + 1, sizeof b);
-      const Pair re = __builtin_shuffle(a, b, PairIndex{0, 2}), im = __builtin_shuffle(a, b, PairIndex{1, 3});
+      const Pair re = __builtin_shufflevector(a, b, 0, 2), im = __builtin_shufflevector(a, b, 1, 3);
       const Pair p = re * re + im * im;
       if (p[0] >= level) return from;
       if (p[1] >= level) return from + 1;
