@@ -391,6 +391,13 @@ Table read_table(hid_t dataset, const std::string& what) {
   const std::size_t buffer_bytes = std::clamp<std::size_t>(std::max<std::size_t>(n, 1) * row_bytes, row_bytes, 1u << 20);
   check_status(H5Pset_buffer(dxpl, buffer_bytes, nullptr, nullptr), what);
   int members = H5Tget_nmembers(ftype);
+  // A member reaching past the row (a damaged file) would make HDF5's conversion read past the
+  // right-sized buffers above.
+  for (int i = 0; i < members; ++i) {
+    Id mtype(check(H5Tget_member_type(ftype, static_cast<unsigned>(i)), what));
+    if (H5Tget_member_offset(ftype, static_cast<unsigned>(i)) + H5Tget_size(mtype) > H5Tget_size(ftype))
+      throw RuntimeFailure(what + ": damaged table (column " + std::to_string(i) + " reaches past its row)");
+  }
   for (int i = 0; i < members; ++i) {
     char* mname = H5Tget_member_name(ftype, static_cast<unsigned>(i));
     std::string name = mname ? mname : "";
