@@ -390,6 +390,12 @@ Table read_table(hid_t dataset, const std::string& what) {
   const std::size_t row_bytes = std::max<std::size_t>(H5Tget_size(ftype), 8);
   const std::size_t buffer_bytes = std::clamp<std::size_t>(std::max<std::size_t>(n, 1) * row_bytes, row_bytes, 1u << 20);
   check_status(H5Pset_buffer(dxpl, buffer_bytes, nullptr, nullptr), what);
+  // A damaged shape could ask for terabytes; the rows can be at most as large as their stored
+  // bytes allow (deflate expands at most about 1032:1; 1100 leaves room for shuffle and RLE).
+  const double stored_bytes = static_cast<double>(H5Dget_storage_size(dataset));
+  if (static_cast<double>(n) * static_cast<double>(row_bytes) > std::max(stored_bytes * 1100.0, double(1u << 20)))
+    throw RuntimeFailure(fmt::format("{}: damaged table ({} rows of {} bytes from {} stored bytes)", what, n,
+                                     row_bytes, stored_bytes));
   int members = H5Tget_nmembers(ftype);
   // A member reaching past the row (a damaged file) would make HDF5's conversion read past the
   // right-sized buffers above.
