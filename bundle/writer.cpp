@@ -114,8 +114,10 @@ struct BundleWriter::Impl {
     }
   }
 
-  // /index as index_table(all rows) would write it, built kTableChunkRows rows (one chunk) at a
-  // time from the spilled rows, with the string widths of the whole table: the same bytes.
+  // /index as index_table(all rows) would write it, with the string widths of the whole table,
+  // one chunk of kTableChunkRows rows at a time packed from the spilled rows, which are read
+  // kIndexReadRows at a time: the same bytes for a transient of about two chunks (~1 MB).
+  static constexpr std::size_t kIndexReadRows = 256;  // divides kTableChunkRows: no block straddles chunks
   void write_index() {
     const ChunkFilters filters = table_filters();
     if (index->size() == 0) {
@@ -129,18 +131,27 @@ struct BundleWriter::Impl {
     h5::Id ds;
     EncodedArray layout;
     std::size_t k = 0;
-    index->read_blocks(chunk_rows, [&](const std::vector<IndexRow>& rows) {
-      std::vector<unsigned char> packed = pack_rows(index_table(rows), members);
+    std::vector<unsigned char> packed;
+    packed.reserve(chunk_rows * row_size);
+    const auto store_chunk = [&] {
       packed.resize(chunk_rows * row_size, 0);  // the last chunk zero-filled, as encode_elements does
       EncodedArray chunk = encode_elements(packed.data(), 1, chunk_rows, true, StoredType::packed, row_size,
                                            chunk_rows, filters);
       if (!ds.valid()) {
         layout = chunk;
+        layout.chunks.clear();
         layout.cols = index->size();
         ds = h5::create_encoded(file, "index", layout, type);
       }
       h5::write_chunk(ds, layout, k++, chunk.chunks.at(0), "index");
+      packed.clear();
+    };
+    index->read_blocks(kIndexReadRows, [&](const std::vector<IndexRow>& rows) {
+      const std::vector<unsigned char> block = pack_rows(index_table(rows), members);
+      packed.insert(packed.end(), block.begin(), block.end());
+      if (packed.size() == chunk_rows * row_size) store_chunk();
     });
+    if (!packed.empty()) store_chunk();
     std::vector<std::string> units;
     for (const Column& c : widest.columns) units.push_back(c.unit);
     h5::set_attr(ds, "units", units);
