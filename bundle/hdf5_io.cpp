@@ -303,13 +303,12 @@ hid_t file_type_of(StoredType t) {
   return -1;
 }
 
-Id write_encoded(hid_t parent, const std::string& name, const EncodedArray& a, hid_t file_type) {
+Id create_encoded(hid_t parent, const std::string& name, const EncodedArray& a, hid_t file_type) {
   std::vector<hsize_t> dims = a.one_d ? std::vector<hsize_t>{a.cols} : std::vector<hsize_t>{a.rows, a.cols};
   Id space(check(H5Screate_simple(static_cast<int>(dims.size()), dims.data(), nullptr), name));
   Id dcpl(check(H5Pcreate(H5P_DATASET_CREATE), name));
   check_status(H5Pset_obj_track_times(dcpl, false), name);
-  const bool chunked = !a.chunks.empty();
-  if (chunked) {
+  if (a.chunk_cols > 0) {
     std::vector<hsize_t> chunk = a.one_d ? std::vector<hsize_t>{a.chunk_cols} : std::vector<hsize_t>{1, a.chunk_cols};
     check_status(H5Pset_chunk(dcpl, static_cast<int>(chunk.size()), chunk.data()), name);
     if (a.filters.shuffle) check_status(H5Pset_shuffle(dcpl), name);
@@ -317,15 +316,20 @@ Id write_encoded(hid_t parent, const std::string& name, const EncodedArray& a, h
       check_status(H5Pset_deflate(dcpl, static_cast<unsigned>(a.filters.deflate_level)), name);
     if (a.filters.fletcher32) check_status(H5Pset_fletcher32(dcpl), name);
   }
-  Id ds(check(H5Dcreate2(parent, name.c_str(), file_type >= 0 ? file_type : file_type_of(a.type), space, H5P_DEFAULT, dcpl, H5P_DEFAULT), name));
-  if (!chunked) return ds;
+  return Id(check(H5Dcreate2(parent, name.c_str(), file_type >= 0 ? file_type : file_type_of(a.type), space, H5P_DEFAULT, dcpl, H5P_DEFAULT), name));
+}
+
+void write_chunk(hid_t dataset, const EncodedArray& a, std::size_t k, const std::vector<unsigned char>& chunk,
+                 const std::string& name) {
   const std::size_t per_row = a.chunks_per_row();
-  for (std::size_t k = 0; k < a.chunks.size(); ++k) {
-    const hsize_t col = (k % per_row) * a.chunk_cols;
-    const hsize_t two_d[2] = {k / per_row, col};
-    const hsize_t* offset = a.one_d ? &two_d[1] : two_d;
-    check_status(H5Dwrite_chunk(ds, H5P_DEFAULT, 0, offset, a.chunks[k].size(), a.chunks[k].data()), name);
-  }
+  const hsize_t two_d[2] = {k / per_row, (k % per_row) * a.chunk_cols};
+  const hsize_t* offset = a.one_d ? &two_d[1] : two_d;
+  check_status(H5Dwrite_chunk(dataset, H5P_DEFAULT, 0, offset, chunk.size(), chunk.data()), name);
+}
+
+Id write_encoded(hid_t parent, const std::string& name, const EncodedArray& a, hid_t file_type) {
+  Id ds = create_encoded(parent, name, a, file_type);
+  for (std::size_t k = 0; k < a.chunks.size(); ++k) write_chunk(ds, a, k, a.chunks[k], name);
   return ds;
 }
 

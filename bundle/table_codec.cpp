@@ -31,22 +31,28 @@ void put(unsigned char* dst, T v) {
 
 }  // namespace
 
-EncodedTable encode_table(const Table& table, const ChunkFilters& filters) {
-  EncodedTable out;
-  std::size_t row_bytes = 0;
+std::vector<TableMember> table_members(const Table& table) {
+  std::vector<TableMember> members;
+  std::size_t offset = 0;
   for (const Column& c : table.columns) {
-    out.members.push_back({c.name, c.kind, row_bytes, member_bytes(c)});
-    out.units.push_back(c.unit);
-    row_bytes += out.members.back().bytes;
+    members.push_back({c.name, c.kind, offset, member_bytes(c)});
+    offset += members.back().bytes;
   }
-  row_bytes = std::max<std::size_t>(row_bytes, 1);
-  const std::size_t n = table.rows();
-  std::vector<unsigned char> buf(n * row_bytes, 0);
+  return members;
+}
+
+std::size_t row_bytes(const std::vector<TableMember>& members) {
+  return members.empty() ? 1 : std::max<std::size_t>(members.back().offset + members.back().bytes, 1);
+}
+
+std::vector<unsigned char> pack_rows(const Table& table, const std::vector<TableMember>& members) {
+  const std::size_t n = table.rows(), size = row_bytes(members);
+  std::vector<unsigned char> buf(n * size, 0);
   for (std::size_t ci = 0; ci < table.columns.size(); ++ci) {
     const Column& c = table.columns[ci];
     if (c.size() != n) throw std::logic_error("table: ragged column " + c.name);
     for (std::size_t r = 0; r < n; ++r) {
-      unsigned char* dst = buf.data() + r * row_bytes + out.members[ci].offset;
+      unsigned char* dst = buf.data() + r * size + members[ci].offset;
       switch (c.kind) {
         case ColumnKind::i8: put(dst, static_cast<std::int8_t>(c.ints[r])); break;
         case ColumnKind::u8: put(dst, static_cast<std::uint8_t>(c.ints[r])); break;
@@ -54,11 +60,23 @@ EncodedTable encode_table(const Table& table, const ChunkFilters& filters) {
         case ColumnKind::i64: put(dst, static_cast<std::int64_t>(c.ints[r])); break;
         case ColumnKind::u64: put(dst, static_cast<std::uint64_t>(c.ints[r])); break;
         case ColumnKind::f64: put(dst, c.reals[r]); break;
-        case ColumnKind::str: std::memcpy(dst, c.strings[r].data(), c.strings[r].size()); break;
+        case ColumnKind::str:
+          if (c.strings[r].size() > members[ci].bytes) throw std::logic_error("table: string wider than column " + c.name);
+          std::memcpy(dst, c.strings[r].data(), c.strings[r].size());
+          break;
       }
     }
   }
-  out.rows = encode_elements(buf.data(), 1, n, true, StoredType::packed, row_bytes, kTableChunkRows, filters);
+  return buf;
+}
+
+EncodedTable encode_table(const Table& table, const ChunkFilters& filters) {
+  EncodedTable out;
+  out.members = table_members(table);
+  for (const Column& c : table.columns) out.units.push_back(c.unit);
+  const std::vector<unsigned char> buf = pack_rows(table, out.members);
+  out.rows = encode_elements(buf.data(), 1, table.rows(), true, StoredType::packed, row_bytes(out.members),
+                             kTableChunkRows, filters);
   return out;
 }
 

@@ -32,4 +32,11 @@ struct EncodedTable {
 // Throws std::logic_error for a ragged table.
 EncodedTable encode_table(const Table& table, const ChunkFilters& filters);
 
+// The parts of encode_table, for a table written a block of rows at a time: the members of its
+// rows (strings as wide as the column's longest value), the row size, and the rows of `table`
+// packed by `members` (of a table with strings at least as wide; std::logic_error otherwise).
+std::vector<TableMember> table_members(const Table& table);
+std::size_t row_bytes(const std::vector<TableMember>& members);
+std::vector<unsigned char> pack_rows(const Table& table, const std::vector<TableMember>& members);
+
 }  // namespace stethogen::bundle

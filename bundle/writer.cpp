@@ -7,13 +7,17 @@
 #include <cmath>
 #include <cstdlib>
 #include <ctime>
+#include <optional>
+#include <vector>
 
 #include <fmt/format.h>
 
 #include "bundle/hdf5_io.hpp"
+#include "bundle/index_spill.hpp"
 #include "bundle/reader_impl.hpp"
 #include "bundle/schema.hpp"
 #include "bundle/staged_record.hpp"
+#include "bundle/table_codec.hpp"
 #include "core/error.hpp"
 
 namespace stethogen::bundle {
@@ -48,7 +52,8 @@ struct BundleWriter::Impl {
   BundleAttributes attributes;
   WriterOptions options;
   h5::Id file, records;
-  std::vector<IndexRow> index;
+  // The /index rows, on disk until finish() (a run of many records keeps flat memory).
+  std::optional<IndexSpill> index;
   std::vector<SkippedRecord> skipped;
   bool open = false;
 
@@ -109,6 +114,49 @@ struct BundleWriter::Impl {
     }
   }
 
+  // /index as index_table(all rows) would write it, with the string widths of the whole table,
+  // one chunk of kTableChunkRows rows at a time packed from the spilled rows, which are read
+  // kIndexReadRows at a time: the same bytes for a transient of about two chunks (~1 MB).
+  static constexpr std::size_t kIndexReadRows = 256;  // divides kTableChunkRows: no block straddles chunks
+  void write_index() {
+    const ChunkFilters filters = table_filters();
+    if (index->size() == 0) {
+      h5::write_table(file, "index", index_table({}), filters);
+      return;
+    }
+    const Table widest = index_table({index->widest()});
+    const std::vector<TableMember> members = table_members(widest);
+    const std::size_t row_size = row_bytes(members), chunk_rows = std::min(kTableChunkRows, index->size());
+    h5::Id type = h5::compound_type(members, row_size);
+    h5::Id ds;
+    EncodedArray layout;
+    std::size_t k = 0;
+    std::vector<unsigned char> packed;
+    packed.reserve(chunk_rows * row_size);
+    const auto store_chunk = [&] {
+      packed.resize(chunk_rows * row_size, 0);  // the last chunk zero-filled, as encode_elements does
+      EncodedArray chunk = encode_elements(packed.data(), 1, chunk_rows, true, StoredType::packed, row_size,
+                                           chunk_rows, filters);
+      if (!ds.valid()) {
+        layout = chunk;
+        layout.chunks.clear();
+        layout.cols = index->size();
+        ds = h5::create_encoded(file, "index", layout, type);
+      }
+      h5::write_chunk(ds, layout, k++, chunk.chunks.at(0), "index");
+      packed.clear();
+    };
+    index->read_blocks(kIndexReadRows, [&](const std::vector<IndexRow>& rows) {
+      const std::vector<unsigned char> block = pack_rows(index_table(rows), members);
+      packed.insert(packed.end(), block.begin(), block.end());
+      if (packed.size() == chunk_rows * row_size) store_chunk();
+    });
+    if (!packed.empty()) store_chunk();
+    std::vector<std::string> units;
+    for (const Column& c : widest.columns) units.push_back(c.unit);
+    h5::set_attr(ds, "units", units);
+  }
+
   void close_and_remove() noexcept {
     records.reset();
     file.reset();
@@ -143,6 +191,7 @@ BundleWriter::BundleWriter(const fs::path& target, const BundleAttributes& attri
     throw RuntimeFailure(fmt::format("{}: cannot create: {}", m.temp.string(), h5::error_reason()));
   m.open = true;
   try {
+    m.index.emplace(m.temp.parent_path());
     const BundleAttributes& a = m.attributes;
     hid_t root = m.file;
     h5::set_attr(root, "format", kBundleFormatName);
@@ -190,7 +239,7 @@ void BundleWriter::write_staged(const StagedRecord& record) {
   } catch (const RuntimeFailure& e) {
     throw RuntimeFailure(fmt::format("{}: record {}: {}", m.temp.string(), id, e.what()));
   }
-  m.index.push_back(record.row);
+  m.index->append(record.row);
 }
 
 void BundleWriter::copy_record(const BundleReader& source, const std::string& record_id) {
@@ -205,7 +254,7 @@ void BundleWriter::copy_record(const BundleReader& source, const std::string& re
   if (H5Ocopy(source.impl_->file, from.c_str(), m.records, record_id.c_str(), H5P_DEFAULT, H5P_DEFAULT) < 0)
     throw RuntimeFailure(fmt::format("{}: copying {} from {}: {}", m.temp.string(), from,
                                      source.path().string(), h5::error_reason()));
-  m.index.push_back(*row);
+  m.index->append(*row);
 }
 
 void BundleWriter::add_skipped(const SkippedRecord& skipped) { impl_->skipped.push_back(skipped); }
@@ -239,7 +288,7 @@ void BundleWriter::finish() {
   Impl& m = *impl_;
   if (!m.open) throw std::logic_error("BundleWriter: finish after finish/abandon");
   try {
-    h5::write_table(m.file, "index", index_table(m.index), m.table_filters());
+    m.write_index();
     h5::write_table(m.file, "skipped", skipped_table(m.skipped), m.table_filters());
     m.records.reset();
     h5::check_status(H5Fflush(m.file, H5F_SCOPE_GLOBAL), "flush");
@@ -268,7 +317,7 @@ void BundleWriter::abandon() noexcept {
   impl_->close_and_remove();
 }
 
-std::size_t BundleWriter::records_written() const { return impl_->index.size(); }
+std::size_t BundleWriter::records_written() const { return impl_->index ? impl_->index->size() : 0; }
 const fs::path& BundleWriter::target() const { return impl_->target; }
 const fs::path& BundleWriter::temp_path() const { return impl_->temp; }
 

@@ -4,6 +4,7 @@
 #include <filesystem>
 #include <fstream>
 
+#include "bundle/chunk_codec.hpp"
 #include "bundle/reader.hpp"
 #include "bundle/writer.hpp"
 #include "core/error.hpp"
@@ -138,4 +139,32 @@ TEST_CASE("the reader refuses files that are not bundles", "[bundle]") {
   fs::copy_file(good, truncated);
   fs::resize_file(truncated, fs::file_size(good) / 2);
   REQUIRE_THROWS_AS(BundleReader(truncated), InputError);
+}
+
+// More rows than one /index chunk (4096), ids of growing width: the table is written a chunk at a
+// time from the rows kept on disk, with the widths of the whole table, and leaves no file behind.
+TEST_CASE("an index of several chunks reads back in order", "[bundle]") {
+  test::TempDir dir;
+  const fs::path path = dir.path() / "many.h5";
+  const Record record = test::make_test_record(0, 2000);
+  const BundleAttributes attributes = test_attributes();
+  const EncodedRecord encoded =
+      encode_record(record, RecordParts::all(), attributes.sample_format, attributes.compression);
+  constexpr std::size_t n = 4100;
+  {
+    BundleWriter w(path, attributes);
+    for (std::size_t i = 0; i < n; ++i) w.write_record(record, encoded, RecordParts::all(), "x" + std::to_string(i));
+    REQUIRE(w.records_written() == n);
+    w.finish();
+  }
+  REQUIRE(std::distance(fs::directory_iterator(dir.path()), fs::directory_iterator()) == 1);
+  BundleReader reader(path);
+  const std::vector<IndexRow>& index = reader.index();
+  REQUIRE(index.size() == n);
+  for (std::size_t i : {std::size_t(0), std::size_t(9), std::size_t(4095), std::size_t(4096), n - 1}) {
+    CHECK(index[i].record_id == "x" + std::to_string(i));
+    CHECK(index[i].population == record.subject.population);
+    CHECK(index[i].n_samples == 2000);
+    CHECK(index[i].snr_achieved_db == Approx(11.9));
+  }
 }
