@@ -82,7 +82,7 @@ bench::ProcessRun generate(const std::string& binary, const std::string& source,
 }  // namespace
 
 int main(int argc, char** argv) {
-  stethogen::keep_freed_memory_for_reuse();  // as the stethogen executable does
+  stethogen::configure_allocator();  // as the stethogen executable does
   CLI::App app{"stethogen benchmark (docs/performance.md)"};
   std::string source = STETHOGEN_SOURCE_DIR, binary, python = "/usr/bin/python3", scratch;
   std::uint64_t stage_records = 5, thread_records = 40;  // 40: the serial final assembly is a small share, as in a real run

@@ -3,6 +3,6 @@
 #include "core/allocator.hpp"
 
 int main(int argc, char** argv) {
-  stethogen::keep_freed_memory_for_reuse();
+  stethogen::configure_allocator();
   return stethogen::cli::run(argc, argv);
 }

@@ -6,7 +6,8 @@ namespace stethogen {
 // kernel. Every record allocates the same large buffers (the engine's series alone is about
 // 10 MB for 30 s); by default glibc returns them on free, and the next record pays the kernel
 // for zeroing the pages again (10-12 % of the engine's CPU, measured). Peak memory is unchanged:
-// what is kept is what the previous record used. Call once at program start.
-void keep_freed_memory_for_reuse();
+// what is kept is what the previous record used. Also one malloc arena for all threads, so
+// memory stays flat however many records a run makes. Call once at program start.
+void configure_allocator();
 
 }  // namespace stethogen
