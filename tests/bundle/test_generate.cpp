@@ -128,14 +128,10 @@ TEST_CASE("an existing output is left untouched without --force", "[generate][sa
   REQUIRE(read_bytes(out).rfind("\x89HDF", 0) == 0);
 }
 
-TEST_CASE("kill -9 leaves no final file and --resume completes an identical bundle", "[generate][safety]") {
-  TempDir dir;
-  const fs::path recipe = longer_recipe(dir.path(), 40);
-  const fs::path reference = dir.path() / "reference.h5";
-  REQUIRE(run(generate_cmd(recipe, reference, "--threads 2")).exit_code == 0);
+namespace {
 
-  const fs::path out = dir.path() / "run.h5";
-  const fs::path workdir = out.string() + ".partial";
+// `generate --threads 2` as a child process, to be killed part-way.
+pid_t start_generate(const fs::path& recipe, const fs::path& out) {
   pid_t pid = fork();
   REQUIRE(pid >= 0);
   if (pid == 0) {
@@ -144,6 +140,20 @@ TEST_CASE("kill -9 leaves no final file and --resume completes an identical bund
           "2", static_cast<char*>(nullptr));
     _exit(127);
   }
+  return pid;
+}
+
+}  // namespace
+
+TEST_CASE("kill -9 leaves no final file and --resume completes an identical bundle", "[generate][safety]") {
+  TempDir dir;
+  const fs::path recipe = longer_recipe(dir.path(), 40);
+  const fs::path reference = dir.path() / "reference.h5";
+  REQUIRE(run(generate_cmd(recipe, reference, "--threads 2")).exit_code == 0);
+
+  const fs::path out = dir.path() / "run.h5";
+  const fs::path workdir = out.string() + ".partial";
+  const pid_t pid = start_generate(recipe, out);
   // Wait until a few records are saved, then kill without warning.
   auto deadline = std::chrono::steady_clock::now() + std::chrono::seconds(60);
   while (count_scratch(workdir) < 3 && std::chrono::steady_clock::now() < deadline && !fs::exists(out))
@@ -173,14 +183,7 @@ TEST_CASE("a damaged scratch file is made again on resume and the bundle is stil
 
   const fs::path out = dir.path() / "run.h5";
   const fs::path workdir = out.string() + ".partial";
-  pid_t pid = fork();
-  REQUIRE(pid >= 0);
-  if (pid == 0) {
-    setenv("SOURCE_DATE_EPOCH", "1700000000", 1);
-    execl(binary().c_str(), binary().c_str(), "generate", recipe.c_str(), "-o", out.c_str(), "--quiet", "--threads",
-          "2", static_cast<char*>(nullptr));
-    _exit(127);
-  }
+  const pid_t pid = start_generate(recipe, out);
   // Records 0-3 saved (the workers may finish them out of order).
   const auto saved = [&] {
     for (const char* name : {"rec-000000000000.stg", "rec-000000000001.stg", "rec-000000000002.stg", "rec-000000000003.stg"})
