@@ -130,7 +130,7 @@ TEST_CASE("an existing output is left untouched without --force", "[generate][sa
 
 namespace {
 
-// `generate --threads 2` as a child process, to be killed part-way.
+// `generate --threads 2` as a child process, killed without warning by interrupt_generate.
 pid_t start_generate(const fs::path& recipe, const fs::path& out) {
   pid_t pid = fork();
   REQUIRE(pid >= 0);
@@ -141,6 +141,19 @@ pid_t start_generate(const fs::path& recipe, const fs::path& out) {
     _exit(127);
   }
   return pid;
+}
+
+// Waits (at most 60 s) until ready() or the run has finished, then kills it with SIGKILL; the run
+// must have been killed part-way.
+template <typename Ready>
+void interrupt_generate(pid_t pid, const fs::path& out, Ready ready) {
+  const auto deadline = std::chrono::steady_clock::now() + std::chrono::seconds(60);
+  while (!ready() && std::chrono::steady_clock::now() < deadline && !fs::exists(out))
+    std::this_thread::sleep_for(std::chrono::milliseconds(5));
+  kill(pid, SIGKILL);
+  int status = 0;
+  waitpid(pid, &status, 0);
+  REQUIRE(WIFSIGNALED(status));  // killed part-way, not finished
 }
 
 }  // namespace
@@ -154,14 +167,8 @@ TEST_CASE("kill -9 leaves no final file and --resume completes an identical bund
   const fs::path out = dir.path() / "run.h5";
   const fs::path workdir = out.string() + ".partial";
   const pid_t pid = start_generate(recipe, out);
-  // Wait until a few records are saved, then kill without warning.
-  auto deadline = std::chrono::steady_clock::now() + std::chrono::seconds(60);
-  while (count_scratch(workdir) < 3 && std::chrono::steady_clock::now() < deadline && !fs::exists(out))
-    std::this_thread::sleep_for(std::chrono::milliseconds(5));
-  kill(pid, SIGKILL);
-  int status = 0;
-  waitpid(pid, &status, 0);
-  REQUIRE(WIFSIGNALED(status));  // killed part-way, not finished
+  // A few records saved, then killed without warning.
+  interrupt_generate(pid, out, [&] { return count_scratch(workdir) >= 3; });
   REQUIRE_FALSE(fs::exists(out));
   REQUIRE(fs::is_directory(workdir));
 
@@ -190,13 +197,7 @@ TEST_CASE("a damaged scratch file is made again on resume and the bundle is stil
       if (!fs::exists(workdir / name)) return false;
     return true;
   };
-  auto deadline = std::chrono::steady_clock::now() + std::chrono::seconds(60);
-  while (!saved() && std::chrono::steady_clock::now() < deadline && !fs::exists(out))
-    std::this_thread::sleep_for(std::chrono::milliseconds(5));
-  kill(pid, SIGKILL);
-  int status = 0;
-  waitpid(pid, &status, 0);
-  REQUIRE(WIFSIGNALED(status));
+  interrupt_generate(pid, out, saved);
   REQUIRE(saved());
   // A power cut can leave a renamed file with lost contents: one flipped byte in record 1's data.
   const fs::path damaged = workdir / "rec-000000000001.stg";
