@@ -10,6 +10,7 @@
 
 #include "core/error.hpp"
 #include "core/suggest.hpp"
+#include "core/toml_number.hpp"
 #include "noise/recording.hpp"
 
 namespace stethogen::noise {
@@ -60,22 +61,23 @@ class Reader {
     const toml::node* n = get(k);
     if (!n) return;
     if (!n->is_number()) fail(*n, key(k), text_of(*n), "must be a number");
-    double v = n->value<double>().value();
+    double v = toml_number(*n);
     if (!std::isfinite(v) || v < lo || v > hi)
-      fail(*n, key(k), fmt::format("{}", v), fmt::format("must be within [{}, {}]", lo, hi));
+      fail(*n, key(k), n->is_integer() ? text_of(*n) : fmt::format("{}", v),
+           fmt::format("must be within [{}, {}]", lo, hi));
     out = v;
   }
   void rate(const std::string& k, double& out) const {
     const toml::node* n = get(k);
-    if (n && n->is_number() && n->value<double>().value() < 0)
-      fail(*n, key(k), fmt::format("{}", n->value<double>().value()), "must be >= 0 (events per minute)");
+    if (n && n->is_number() && toml_number(*n) < 0)
+      fail(*n, key(k), text_of(*n), "must be >= 0 (events per minute)");
     number(k, out, 0, 600);
   }
   void integer(const std::string& k, int& out, int lo, int hi) const {
     const toml::node* n = get(k);
     if (!n) return;
     if (!n->is_integer()) fail(*n, key(k), text_of(*n), "must be an integer");
-    auto v = n->value<std::int64_t>().value();
+    std::int64_t v = n->as_integer()->get();
     if (v < lo || v > hi) fail(*n, key(k), fmt::format("{}", v), fmt::format("must be within [{}, {}]", lo, hi));
     out = static_cast<int>(v);
   }
@@ -83,13 +85,13 @@ class Reader {
     const toml::node* n = get(k);
     if (!n) return;
     if (!n->is_boolean()) fail(*n, key(k), text_of(*n), "must be true or false");
-    out = n->value<bool>().value();
+    out = n->as_boolean()->get();
   }
   std::string string(const std::string& k) const {
     const toml::node* n = get(k);
     if (!n) return {};
     if (!n->is_string()) fail(*n, key(k), text_of(*n), "must be a string");
-    return n->value<std::string>().value();
+    return n->as_string()->get();
   }
   // A two-number array [lo, hi] with min <= lo < hi <= max.
   void range(const std::string& k, Range& out, double min, double max, const char* unit) const {
@@ -98,7 +100,7 @@ class Reader {
     const toml::array* a = n->as_array();
     if (!a || a->size() != 2 || !(*a)[0].is_number() || !(*a)[1].is_number())
       fail(*n, key(k), text_of(*n), fmt::format("must be [lo, hi] in {}", unit));
-    double lo = (*a)[0].value<double>().value(), hi = (*a)[1].value<double>().value();
+    double lo = toml_number((*a)[0]), hi = toml_number((*a)[1]);
     std::string value = fmt::format("[{}, {}]", lo, hi);
     if (!(lo < hi)) fail(*n, key(k), value, "impossible range: lo must be < hi");
     if (lo < min || hi > max) fail(*n, key(k), value, fmt::format("must lie within [{}, {}] {}", min, max, unit));
@@ -240,9 +242,9 @@ NoiseProfile parse_noise_profile(const toml::table& table, const std::string& ke
     h.enabled = r.enabled();
     if (const toml::node* n = t->get("frequency_hz")) {
       if (!n->is_number()) r.fail(*n, r.key("frequency_hz"), Reader::text_of(*n), "must be 50 or 60");
-      h.frequency_hz = n->value<double>().value();
+      h.frequency_hz = toml_number(*n);
       if (h.frequency_hz != 50 && h.frequency_hz != 60)
-        r.fail(*n, r.key("frequency_hz"), fmt::format("{}", h.frequency_hz), "must be 50 or 60");
+        r.fail(*n, r.key("frequency_hz"), Reader::text_of(*n), "must be 50 or 60");
     }
     r.integer("harmonics", h.harmonics, 0, 40);
     r.number("harmonic_step_db", h.harmonic_step_db, -40, 0);

@@ -6,6 +6,7 @@
 
 #include "core/check.hpp"
 #include "core/suggest.hpp"
+#include "core/toml_number.hpp"
 
 namespace stethogen::recipe::detail {
 namespace {
@@ -106,7 +107,10 @@ std::int64_t Fields::integer(const toml::node& node, const std::string& path, st
 double Fields::number(const toml::node& node, const std::string& path, double lo, double hi) const {
   if (!node.is_number())
     fail(node, fmt::format("{} = {}: must be a number within [{}, {}]", path, describe(node), lo, hi));
-  double v = node.value<double>().value();
+  double v = toml_number(node);
+  // An integer beyond 2^53 rounds on conversion: name it as written.
+  if (node.is_integer() && !(v >= lo && v <= hi))
+    fail(node, fmt::format("{} = {}: must be within [{}, {}]", path, describe(node), lo, hi));
   located(node, [&] { check_in_range(path, v, lo, hi); });
   return v;
 }
@@ -122,7 +126,8 @@ std::vector<double> Fields::weights(const toml::node& node, const std::string& p
     std::string p = fmt::format("{}[{}]", path, i);
     if (!arr[i].is_number())
       fail(arr[i], fmt::format("{} = {}: must be a number >= 0", p, describe(arr[i])));
-    w.push_back(arr[i].value<double>().value());
+    w.push_back(toml_number(arr[i]));
+    if (arr[i].is_integer() && w.back() < 0) fail(arr[i], fmt::format("{} = {}: must be >= 0", p, describe(arr[i])));
     located(arr[i], [&] { check_non_negative(p, w.back()); });
     sum += w.back();
   }

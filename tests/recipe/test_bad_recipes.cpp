@@ -57,6 +57,10 @@ const std::vector<BadRecipe> kCorpus = {
     {"duration_nan", "3:14: dataset.duration_s = nan: must be a finite number"},
     {"duration_inf", "3:14: dataset.duration_s = inf: must be a finite number"},
     {"duration_too_long", "3:14: dataset.duration_s = 3600: must be within [2, 600]"},
+    // integers with no exact double (beyond 2^53) are refused as written, not rounded
+    {"duration_integer_beyond_double", "3:14: dataset.duration_s = 9007199254740993: must be within [2, 600]"},
+    {"choice_weight_integer_beyond_double", "8:44: population[0].snr_db.weights[1] = -9223372036854775807: must be >= 0"},
+    {"noise_level_integer_beyond_double", "5:29: noise.ward.sensor_white.level_db = -9007199254740993: must be within [-60, 60]"},
     {"seed_negative", "3:8: dataset.seed = -1: must be an integer within [0, 9223372036854775807]"},
     {"sample_rate_too_low", "3:18: dataset.sample_rate_hz = 500: must be an integer within [1000, 48000]"},
     {"count_huge", "6:9: population[0].count = 9223372036854775807: must be an integer within [1, 1000000]"},
