@@ -223,8 +223,7 @@ EngineRun run_engine(const SubjectSpec& subject, const IntegratorSettings& setti
       double a = t_prev, b = t_now;
       while (b - a > 1e-8) {
         const double m = 0.5 * (a + b);
-        integ.state_at(m, x);
-        if ((x[kLeaflet[i]] - kLeafletOpenThreshold > 0) == (g0 > 0)) a = m; else b = m;
+        if ((integ.component_at(m, kLeaflet[i]) - kLeafletOpenThreshold > 0) == (g0 > 0)) a = m; else b = m;
       }
       const double t_cross = 0.5 * (a + b);
       if (t_cross >= series_begin && t_cross <= series_end)
