@@ -20,11 +20,25 @@ struct Window {
   std::size_t begin, end;  // sample indices [begin, end)
 };
 
+// Four independent running extremes: the series is finite (the integrator checks every
+// step), where the maximum does not depend on the order, and the comparisons no longer wait on
+// each other. The same values as max_element / min_element.
+template <class Better>
+double extreme_of(const std::vector<double>& v, Window w, Better better) {
+  const double* x = v.data();
+  double e[4] = {x[w.begin], x[w.begin], x[w.begin], x[w.begin]};
+  std::size_t k = w.begin;
+  for (; k + 4 <= w.end; k += 4)
+    for (int j = 0; j < 4; ++j) e[j] = better(x[k + j], e[j]) ? x[k + j] : e[j];
+  for (; k < w.end; ++k) e[0] = better(x[k], e[0]) ? x[k] : e[0];
+  for (int j = 1; j < 4; ++j) e[0] = better(e[j], e[0]) ? e[j] : e[0];
+  return e[0];
+}
 double max_of(const std::vector<double>& v, Window w) {
-  return *std::max_element(v.begin() + w.begin, v.begin() + w.end);
+  return extreme_of(v, w, [](double a, double b) { return a > b; });
 }
 double min_of(const std::vector<double>& v, Window w) {
-  return *std::min_element(v.begin() + w.begin, v.begin() + w.end);
+  return extreme_of(v, w, [](double a, double b) { return a < b; });
 }
 double mean_of(const std::vector<double>& v, Window w) {
   double sum = 0;
@@ -37,10 +51,14 @@ double integral_of(const std::vector<double>& v, Window w, double rate_hz) {
   return sum / rate_hz;
 }
 double max_derivative(const std::vector<double>& v, Window w, double rate_hz) {
-  double best = -INFINITY;
-  for (std::size_t k = std::max<std::size_t>(w.begin, 1); k < w.end && k + 1 < v.size(); ++k)
-    best = std::max(best, (v[k + 1] - v[k - 1]) * 0.5 * rate_hz);
-  return best;
+  const std::size_t begin = std::max<std::size_t>(w.begin, 1), end = std::min(w.end, v.size() - 1);
+  const double* x = v.data();
+  double best[4] = {-INFINITY, -INFINITY, -INFINITY, -INFINITY};
+  std::size_t k = begin;
+  for (; k + 4 <= end; k += 4)
+    for (int j = 0; j < 4; ++j) best[j] = std::max(best[j], (x[k + j + 1] - x[k + j - 1]) * 0.5 * rate_hz);
+  for (; k < end; ++k) best[0] = std::max(best[0], (x[k + 1] - x[k - 1]) * 0.5 * rate_hz);
+  return std::max(std::max(best[0], best[1]), std::max(best[2], best[3]));
 }
 
 // First transition of the valve and direction inside [lo, hi), or NaN.
