@@ -53,8 +53,10 @@ class Dopri5 {
     restart(x0, t0_s);
   }
 
-  // Continues from x at t_s with the current step size; the controller keeps its history.
+  // Continues from x at t_s with the current step size; the controller keeps its history, and
+  // state_at() the last step's extension until the next step.
   void restart(const State& x, double t_s) {
+    if (h_last_ > 0) prepare_dense();
     x_ = x;
     t_ = t_s;
     derivative_ready_ = false;
