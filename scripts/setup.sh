@@ -6,7 +6,7 @@ cd "$(dirname "$0")/.."
 
 packages=(
   build-essential cmake pkg-config
-  libeigen3-dev libboost-dev libsndfile1-dev libhdf5-dev libtomlplusplus-dev catch2
+  libeigen3-dev libsndfile1-dev libhdf5-dev libtomlplusplus-dev catch2
   libcli11-dev nlohmann-json3-dev librandom123-dev libsoxr-dev libfftw3-dev zlib1g-dev libssl-dev libfmt-dev
   python3-numpy python3-scipy python3-h5py python3-soundfile python3-mir-eval python3-matplotlib
   clang libclang-rt-14-dev e2fsprogs util-linux
