@@ -1,6 +1,6 @@
 // Writing, as `generate` does it (bundle/generate.cpp): each record's chunks filtered and staged
-// (encode_record, stage_record) and its scratch file saved, on a synthesis thread there; the
-// staged record written into the bundle (the single HDF5 thread); the bundle finished (its index,
+// (encode_record, stage_record), on a synthesis thread there; the staged record written into the
+// bundle and its scratch file saved (the single HDF5 thread); the bundle finished (its index,
 // flush, close, rename). Thread CPU time of each step, and the final file's size.
 #include <filesystem>
 
@@ -44,9 +44,9 @@ WritingTimes time_writing(const std::vector<Record>& records, const recipe::Reci
     entry.record = bundle::stage_record(
         r, bundle::encode_record(r, bundle::RecordParts::all(), settings.sample_format, settings.compression),
         bundle::RecordParts::all(), settings);
-    bundle::save_scratch(dir / fmt::format("rec-{:012}.stg", i), entry);
     const double c2 = thread_cpu_s();
-    writer.write_staged(*entry.record);
+    writer.write_staged(*entry.record, &entry.chunk_offsets);
+    bundle::save_scratch(dir / fmt::format("rec-{:012}.stg", i), entry);
     const double c3 = thread_cpu_s();
     t.encode_s += c2 - c1;
     t.store_s += c3 - c2;

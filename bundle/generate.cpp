@@ -58,11 +58,24 @@ class SignalScope {
   void (*old_xfsz_)(int);
 };
 
-// Each finished record (or skipped-record note) is a scratch file in the run directory
-// (bundle/scratch_file.hpp), renamed into place when complete, from which --resume rebuilds the
-// records written before an interruption. The bundle itself is written once, in record order,
-// from the same staged form, so it has the same bytes whatever the thread count or interruptions.
+// Each record written into the partial bundle (or skipped) gets a scratch file in the run
+// directory (bundle/scratch_file.hpp), renamed into place when complete: its staged metadata and
+// where its chunks are in that partial bundle, the run's data file. After an interruption
+// --resume writes a new data file (the next generation) from the staged form read back, in
+// record order, so the bundle has the same bytes whatever the thread count or interruptions.
 std::string scratch_name(std::uint64_t index) { return fmt::format("rec-{:012}.stg", index); }
+
+// The generations of the data files in the run directory.
+std::vector<std::uint64_t> data_generations(const fs::path& workdir) {
+  static const std::regex pattern(R"(bundle-(\d{1,18})\.h5)");
+  std::vector<std::uint64_t> found;
+  for (const auto& entry : fs::directory_iterator(workdir)) {
+    const std::string name = entry.path().filename().string();
+    std::smatch m;
+    if (std::regex_match(name, m, pattern)) found.push_back(std::stoull(m[1]));
+  }
+  return found;
+}
 
 // Index of the first record of the range without a scratch file; removes partial files.
 std::uint64_t scan_scratch(const fs::path& workdir, const RecordRange& range) {
@@ -118,17 +131,15 @@ struct StopOnFailure : RuntimeFailure {
   using RuntimeFailure::RuntimeFailure;
 };
 
-// One synthesised record as the bundle stores it, or the reason it failed; saved to its scratch
-// file by then (save_error: why that failed, a write error that stops the run).
+// One synthesised record as the bundle stores it, or the reason it failed.
 struct Outcome {
   std::optional<StagedRecord> record;
   std::string record_id;
   std::string failure;
-  std::string save_error;
 };
 
 // Synthesises records [begin, end) on worker threads, and stages them there too (chunks filtered:
-// shuffle, deflate, checksums, the costly part of writing) and saves their scratch files; take(i)
+// shuffle, deflate, checksums, the costly part of writing); take(i)
 // hands them to the single HDF5 writer in index order. At most `window` records are held at
 // once, so memory is flat in the record count.
 // With one thread there are no workers: take(i) synthesises record i itself, so `--threads 1`
@@ -136,10 +147,9 @@ struct Outcome {
 class RecordPipeline {
  public:
   RecordPipeline(const recipe::Recipe& recipe, RecordRange todo, unsigned threads,
-                 std::function<Record(const SubjectSpec&)> synthesize, const BundleAttributes& attributes,
-                 fs::path workdir, bool save_failures)
+                 std::function<Record(const SubjectSpec&)> synthesize, const BundleAttributes& attributes)
       : recipe_(recipe), synthesize_(std::move(synthesize)), settings_(staging_settings(attributes)),
-        workdir_(std::move(workdir)), save_failures_(save_failures), next_dispatch_(todo.begin), end_(todo.end),
+        next_dispatch_(todo.begin), end_(todo.end),
         next_write_(todo.begin),
         window_(2 * threads), inline_(threads <= 1) {
     if (!inline_)
@@ -206,7 +216,7 @@ class RecordPipeline {
     }
   }
 
-  // Record i synthesised and staged, or why it failed; its scratch file saved.
+  // Record i synthesised and staged, or why it failed.
   Outcome produce(std::uint64_t i) {
     Outcome out;
     out.record_id = recipe::record_id(i);
@@ -220,24 +230,12 @@ class RecordPipeline {
     } catch (const std::exception& e) {
       out.failure = e.what();
     }
-    ScratchEntry entry;
-    if (out.record) entry.record = std::move(out.record);
-    else if (save_failures_) entry.skipped = SkippedRecord{out.record_id, i, out.failure};
-    else return out;
-    try {
-      save_scratch(workdir_ / scratch_name(i), entry);
-    } catch (const std::exception& e) {
-      out.save_error = e.what();
-    }
-    out.record = std::move(entry.record);
     return out;
   }
 
   const recipe::Recipe& recipe_;
   std::function<Record(const SubjectSpec&)> synthesize_;
   StagingSettings settings_;
-  fs::path workdir_;
-  bool save_failures_;
   std::mutex mu_;
   std::condition_variable done_cv_, space_cv_;
   std::map<std::uint64_t, Outcome> results_;
@@ -338,20 +336,37 @@ GenerateResult generate(const GenerateOptions& options) {
   };
   // The bundle is written as the records come, under a temporary name in the run directory, and
   // renamed into place at the end; an interrupted run leaves only its scratch files.
+  // The data file of this start: a new generation, so the chunks of earlier ones stay readable
+  // until every record saved there is written again (a kill during the rebuild loses nothing).
+  const std::vector<std::uint64_t> generations = data_generations(workdir);
+  const std::uint64_t generation = generations.empty() ? 1 : *std::max_element(generations.begin(), generations.end()) + 1;
   WriterOptions wo;
   wo.overwrite = options.force;
-  wo.temp_path = workdir / "bundle.h5.partial";
+  wo.temp_path = workdir / data_file_name(generation);
+  wo.keep_temp = true;
   std::optional<BundleWriter> bundle;
   std::string damaged_note;
+  // Records into the bundle, each noted in its scratch file once its chunks are in the data file.
+  const auto write_record = [&](std::uint64_t k, StagedRecord&& record) {
+    ScratchEntry entry;
+    entry.generation = generation;
+    bundle->write_staged(record, &entry.chunk_offsets);
+    entry.record = std::move(record);
+    save_scratch(workdir / scratch_name(k), entry);
+  };
+  const auto skip_record = [&](const SkippedRecord& skipped) {
+    bundle->add_skipped(skipped);
+    save_scratch(workdir / scratch_name(skipped.record_index), ScratchEntry{std::nullopt, skipped, 0, {}});
+  };
   try {
     bundle.emplace(output, attributes, wo);
-    // The records an interrupted run saved, in order. A damaged scratch file (e.g. after a power
-    // cut) is made again, with everything after it.
+    // The records an interrupted run saved, in order. A damaged scratch file or chunk (e.g. after
+    // a power cut) is made again, with everything after it.
     for (std::uint64_t k = range.begin; k < next; ++k) {
       const fs::path path = workdir / scratch_name(k);
       std::optional<ScratchEntry> entry;
       try {
-        entry = load_scratch(path);
+        entry = load_scratch(path, workdir);
         const std::uint64_t index = entry->record ? entry->record->row.record_index : entry->skipped->record_index;
         if (index != k) throw RuntimeFailure(fmt::format("{}: holds record {}, not {}", path.string(), index, k));
       } catch (const RuntimeFailure& e) {
@@ -361,11 +376,16 @@ GenerateResult generate(const GenerateOptions& options) {
         break;
       }
       if (entry->record) {
-        bundle->write_staged(*entry->record);
+        write_record(k, std::move(*entry->record));
       } else {
         bundle->add_skipped(*entry->skipped);
         ++result.records_skipped;
       }
+    }
+    // Every saved record now points into this generation's data file.
+    for (std::uint64_t g : generations) {
+      std::error_code ec;  // one left behind is removed by the next start or with the run directory
+      if (g != generation) fs::remove(workdir / data_file_name(g), ec);
     }
   } catch (const RuntimeFailure& e) {
     throw write_failure(e);
@@ -382,7 +402,7 @@ GenerateResult generate(const GenerateOptions& options) {
   unsigned threads = options.threads ? options.threads : std::max(1u, std::thread::hardware_concurrency());
   auto synthesize = options.synthesize ? options.synthesize
                                        : [](const SubjectSpec& s) { return gen::synthesize_record(s); };
-  RecordPipeline pipeline(recipe, {next, range.end}, threads, synthesize, attributes, workdir, skip_failures);
+  RecordPipeline pipeline(recipe, {next, range.end}, threads, synthesize, attributes);
 
   std::uint64_t i = next;
   try {
@@ -397,13 +417,13 @@ GenerateResult generate(const GenerateOptions& options) {
               out->record_id, out->failure, i - range.begin, workdir.string()));
         progress.note(fmt::format("generate: skipped record {}: {}", out->record_id, out->failure));
       }
-      if (!out->save_error.empty()) throw RuntimeFailure(out->save_error);
       if (out->record) {
-        bundle->write_staged(*out->record);
+        const double duration_s = out->record->row.duration_s;
+        write_record(i, std::move(*out->record));
         ++result.records_written;
-        progress.advance(out->record->row.duration_s);
+        progress.advance(duration_s);
       } else {
-        bundle->add_skipped({out->record_id, i, out->failure});
+        skip_record({out->record_id, i, out->failure});
         ++result.records_skipped;
         progress.advance(0);
       }

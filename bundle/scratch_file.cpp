@@ -20,7 +20,7 @@ namespace fs = std::filesystem;
 
 namespace {
 
-constexpr char kMagic[8] = {'S', 'T', 'G', 'S', 'C', 'R', '0', '1'};
+constexpr char kMagic[8] = {'S', 'T', 'G', 'S', 'C', 'R', '0', '2'};
 // Sanity bounds against a damaged header (a 30 s record has about 100 chunks and 40 attributes).
 constexpr std::uint64_t kMaxCount = 1u << 24;
 
@@ -162,8 +162,8 @@ std::vector<StagedAttribute> get_attributes(In& in) {
   return out;
 }
 
-// The array's description; the chunk bytes follow the header.
-void put_array(Out& o, const EncodedArray& a) {
+// The array's description and where its chunks are in the data file (offsets from `next`).
+void put_array(Out& o, const EncodedArray& a, const std::vector<std::uint64_t>& offsets, std::size_t& next) {
   for (std::uint64_t v : {std::uint64_t(a.rows), std::uint64_t(a.cols), std::uint64_t(a.chunk_cols),
                           std::uint64_t(a.element_bytes)})
     o.u64(v);
@@ -177,10 +177,11 @@ void put_array(Out& o, const EncodedArray& a) {
   for (const auto& c : a.chunks) {
     o.u64(c.size());
     o.raw(chunk_check(c, a.filters.fletcher32));
+    o.u64(offsets.at(next++));
   }
 }
-// Fills everything but the chunk bytes; sizes and checks go to `checks`.
-void get_array(In& in, EncodedArray& a, std::vector<std::uint32_t>& checks) {
+// Fills everything but the chunk bytes; checks and offsets go to the entry.
+void get_array(In& in, EncodedArray& a, std::vector<std::uint32_t>& checks, std::vector<std::uint64_t>& offsets) {
   a.rows = in.u64();
   a.cols = in.u64();
   a.chunk_cols = in.u64();
@@ -199,6 +200,7 @@ void get_array(In& in, EncodedArray& a, std::vector<std::uint32_t>& checks) {
     if (n > (std::uint64_t(1) << 32)) throw std::runtime_error("implausible chunk size");
     c.resize(n);
     checks.push_back(in.raw<std::uint32_t>());
+    offsets.push_back(in.u64());
   }
 }
 
@@ -212,10 +214,15 @@ std::vector<unsigned char> header_of(const ScratchEntry& e) {
     return std::move(o.bytes);
   }
   const StagedRecord& r = *e.record;
+  std::size_t chunks = 0;
+  for (const StagedObject& obj : r.objects) chunks += obj.data.chunks.size();
+  if (e.chunk_offsets.size() != chunks) throw std::logic_error("save_scratch: one offset per chunk");
   o.u8(0);
+  o.u64(e.generation);
   put_row(o, r.row);
   put_attributes(o, r.attributes);
   o.u64(r.objects.size());
+  std::size_t next = 0;
   for (const StagedObject& obj : r.objects) {
     o.u8(obj.group);
     o.str(obj.path);
@@ -227,7 +234,7 @@ std::vector<unsigned char> header_of(const ScratchEntry& e) {
       o.u64(m.offset);
       o.u64(m.bytes);
     }
-    put_array(o, obj.data);
+    put_array(o, obj.data, e.chunk_offsets, next);
   }
   return std::move(o.bytes);
 }
@@ -267,6 +274,19 @@ class File {
     }
     return true;
   }
+  // False at a premature end of file.
+  bool read_at(unsigned char* p, std::size_t n, std::uint64_t offset) {
+    while (n) {
+      const ssize_t k = ::pread(fd_, p, n, static_cast<off_t>(offset));
+      if (k < 0 && errno == EINTR) continue;
+      if (k < 0) fail(path_, "cannot read", errno);
+      if (k == 0) return false;
+      p += k;
+      offset += static_cast<std::uint64_t>(k);
+      n -= static_cast<std::size_t>(k);
+    }
+    return true;
+  }
   void close() {
     const int fd = fd_;
     fd_ = -1;
@@ -293,9 +313,6 @@ void save_scratch(const fs::path& path, const ScratchEntry& entry) {
     head.bytes.insert(head.bytes.end(), header.begin(), header.end());
     head.raw(crc(header.data(), header.size()));
     f.write(head.bytes.data(), head.bytes.size());
-    if (entry.record)
-      for (const StagedObject& obj : entry.record->objects)
-        for (const auto& c : obj.data.chunks) f.write(c.data(), c.size());
     f.close();
   } catch (...) {
     std::error_code ec;
@@ -310,7 +327,9 @@ void save_scratch(const fs::path& path, const ScratchEntry& entry) {
   }
 }
 
-ScratchEntry load_scratch(const fs::path& path) {
+std::string data_file_name(std::uint64_t generation) { return fmt::format("bundle-{}.h5", generation); }
+
+ScratchEntry load_scratch(const fs::path& path, const fs::path& data_dir) {
   File f(path, O_RDONLY);
   const auto damaged = [&](const std::string& why) {
     return RuntimeFailure(fmt::format("{}: damaged scratch file ({}); pass --force to start over", path.string(), why));
@@ -338,6 +357,7 @@ ScratchEntry load_scratch(const fs::path& path) {
       e.skipped = std::move(k);
     } else {
       StagedRecord r;
+      e.generation = in.u64();
       r.row = get_row(in);
       r.attributes = get_attributes(in);
       r.objects.resize(in.count());
@@ -354,7 +374,7 @@ ScratchEntry load_scratch(const fs::path& path) {
           m.offset = in.u64();
           m.bytes = in.u64();
         }
-        get_array(in, obj.data, checks);
+        get_array(in, obj.data, checks, e.chunk_offsets);
       }
       e.record = std::move(r);
     }
@@ -362,15 +382,20 @@ ScratchEntry load_scratch(const fs::path& path) {
   } catch (const std::runtime_error& err) {
     throw damaged(err.what());
   }
-  std::size_t k = 0;
-  if (e.record)
-    for (StagedObject& obj : e.record->objects)
-      for (auto& c : obj.data.chunks) {
-        if (!f.read(c.data(), c.size())) throw damaged("truncated data");
-        if (!chunk_intact(c, obj.data.filters.fletcher32, checks[k++])) throw damaged("chunk checksum");
-      }
   unsigned char extra = 0;
   if (f.read(&extra, 1)) throw damaged("trailing bytes");
+  if (!e.record) return e;
+  const fs::path data_path = data_dir / data_file_name(e.generation);
+  if (!fs::exists(data_path)) throw damaged(data_path.filename().string() + " is missing");
+  File data(data_path, O_RDONLY);
+  std::size_t k = 0;
+  for (StagedObject& obj : e.record->objects)
+    for (auto& c : obj.data.chunks) {
+      const std::string where = fmt::format("chunk {} of {} in {}", k, obj.path, data_path.filename().string());
+      if (!data.read_at(c.data(), c.size(), e.chunk_offsets[k])) throw damaged(where + ": truncated");
+      if (!chunk_intact(c, obj.data.filters.fletcher32, checks[k])) throw damaged(where + ": checksum");
+      ++k;
+    }
   return e;
 }
 

@@ -89,7 +89,7 @@ struct BundleWriter::Impl {
     return names;
   }
 
-  void write(const StagedRecord& r) {
+  void write(const StagedRecord& r, std::vector<std::uint64_t>* chunk_offsets) {
     h5::Id g = h5::make_group(records, r.row.record_id, h5::name_heap_bytes(member_names(r, "")));
     write_attributes(g, r.attributes);
     std::string open_path;
@@ -109,7 +109,7 @@ struct BundleWriter::Impl {
         continue;
       }
       h5::Id type = o.members.empty() ? h5::Id() : h5::compound_type(o.members, o.data.element_bytes);
-      h5::Id ds = h5::write_encoded(parent, leaf, o.data, type.valid() ? hid_t(type) : hid_t(-1));
+      h5::Id ds = h5::write_encoded(parent, leaf, o.data, type.valid() ? hid_t(type) : hid_t(-1), chunk_offsets);
       write_attributes(ds, o.attributes);
     }
   }
@@ -161,7 +161,7 @@ struct BundleWriter::Impl {
     records.reset();
     file.reset();
     std::error_code ec;
-    fs::remove(temp, ec);
+    if (!options.keep_temp) fs::remove(temp, ec);
     open = false;
   }
 };
@@ -226,7 +226,7 @@ void BundleWriter::write_record(const Record& record, const EncodedRecord& encod
   write_staged(stage_record(record, encoded, parts, staging_settings(impl_->attributes), override_id));
 }
 
-void BundleWriter::write_staged(const StagedRecord& record) {
+void BundleWriter::write_staged(const StagedRecord& record, std::vector<std::uint64_t>* chunk_offsets) {
   std::lock_guard guard(h5::lock());
   Impl& m = *impl_;
   const std::string& id = record.row.record_id;
@@ -235,7 +235,7 @@ void BundleWriter::write_staged(const StagedRecord& record) {
     throw InputError(fmt::format("record id '{}': must be non-empty and contain no '/'", id));
   if (m.has_record(id)) throw InputError(fmt::format("{}: duplicate record id '{}'", m.target.string(), id));
   try {
-    m.write(record);
+    m.write(record, chunk_offsets);
   } catch (const RuntimeFailure& e) {
     throw RuntimeFailure(fmt::format("{}: record {}: {}", m.temp.string(), id, e.what()));
   }

@@ -11,6 +11,7 @@
 #include <regex>
 #include <thread>
 
+#include "bundle/scratch_file.hpp"
 #include "run_helpers.hpp"
 #include "temp_dir.hpp"
 
@@ -131,13 +132,14 @@ TEST_CASE("an existing output is left untouched without --force", "[generate][sa
 namespace {
 
 // `generate --threads 2` as a child process, killed without warning by interrupt_generate.
-pid_t start_generate(const fs::path& recipe, const fs::path& out) {
+// extra: one more argument (e.g. "--resume"), or none.
+pid_t start_generate(const fs::path& recipe, const fs::path& out, const char* extra = nullptr) {
   pid_t pid = fork();
   REQUIRE(pid >= 0);
   if (pid == 0) {
     setenv("SOURCE_DATE_EPOCH", "1700000000", 1);
     execl(binary().c_str(), binary().c_str(), "generate", recipe.c_str(), "-o", out.c_str(), "--quiet", "--threads",
-          "2", static_cast<char*>(nullptr));
+          "2", extra, static_cast<char*>(nullptr));
     _exit(127);
   }
   return pid;
@@ -211,6 +213,61 @@ TEST_CASE("a damaged scratch file is made again on resume and the bundle is stil
   REQUIRE(resumed.exit_code == 0);
   REQUIRE(resumed.output.find("damaged scratch file") != std::string::npos);
   REQUIRE(resumed.output.find("resuming at record 1 ") != std::string::npos);
+  REQUIRE(read_bytes(out) == read_bytes(reference));
+}
+
+TEST_CASE("a damaged chunk in the partial bundle is made again on resume and the bundle is still identical",
+          "[generate][safety]") {
+  TempDir dir;
+  const fs::path recipe = longer_recipe(dir.path(), 40);
+  const fs::path reference = dir.path() / "reference.h5";
+  REQUIRE(run(generate_cmd(recipe, reference, "--threads 1")).exit_code == 0);
+
+  const fs::path out = dir.path() / "run.h5";
+  const fs::path workdir = out.string() + ".partial";
+  const pid_t pid = start_generate(recipe, out);
+  interrupt_generate(pid, out, [&] { return fs::exists(workdir / "rec-000000000003.stg"); });
+  // The chunks are only in the partial bundle (the run's data file): one flipped bit in a chunk of
+  // record 2 there, as a power cut could leave it.
+  const stethogen::bundle::ScratchEntry entry = stethogen::bundle::load_scratch(workdir / "rec-000000000002.stg", workdir);
+  REQUIRE(entry.generation == 1);
+  const fs::path data = workdir / stethogen::bundle::data_file_name(1);
+  std::string bytes = read_bytes(data);
+  const std::size_t at = entry.chunk_offsets.at(entry.chunk_offsets.size() / 2) + 3;
+  bytes[at] = static_cast<char>(bytes[at] ^ 0x20);
+  std::ofstream(data, std::ios::binary | std::ios::trunc) << bytes;
+
+  RunResult resumed = run(generate_cmd(recipe, out, "--resume --threads 2"));
+  INFO(resumed.output);
+  REQUIRE(resumed.exit_code == 0);
+  REQUIRE(resumed.output.find("damaged scratch file") != std::string::npos);
+  REQUIRE(resumed.output.find("resuming at record 2 ") != std::string::npos);
+  REQUIRE(read_bytes(out) == read_bytes(reference));
+}
+
+TEST_CASE("kill -9 again while --resume rebuilds the bundle, then --resume: still identical", "[generate][safety]") {
+  TempDir dir;
+  const fs::path recipe = longer_recipe(dir.path(), 40);
+  const fs::path reference = dir.path() / "reference.h5";
+  REQUIRE(run(generate_cmd(recipe, reference, "--threads 2")).exit_code == 0);
+
+  const fs::path out = dir.path() / "run.h5";
+  const fs::path workdir = out.string() + ".partial";
+  interrupt_generate(start_generate(recipe, out), out, [&] { return count_scratch(workdir) >= 6; });
+  // The resumed run rebuilds the saved records into a second data file: killed once that exists,
+  // with records in both (or all in the second).
+  interrupt_generate(start_generate(recipe, out, "--resume"), out,
+                     [&] { return fs::exists(workdir / stethogen::bundle::data_file_name(2)); });
+  REQUIRE(fs::exists(workdir / stethogen::bundle::data_file_name(2)));
+  RunResult resumed = run(generate_cmd(recipe, out, "--resume --threads 1"));
+  INFO(resumed.output);
+  REQUIRE(resumed.exit_code == 0);
+  // Nothing saved was lost on the way: at least the first run's six records were taken as they were.
+  REQUIRE(resumed.output.find("damaged") == std::string::npos);
+  std::smatch m;
+  REQUIRE(std::regex_search(resumed.output, m, std::regex(R"(resuming at record (\d+) )")));
+  REQUIRE(std::stoi(m[1]) >= 6);
+  REQUIRE_FALSE(fs::exists(workdir));
   REQUIRE(read_bytes(out) == read_bytes(reference));
 }
 
