@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <atomic>
+#include <chrono>
 #include <condition_variable>
 #include <csignal>
 #include <fstream>
@@ -58,12 +59,30 @@ class SignalScope {
   void (*old_xfsz_)(int);
 };
 
-// Each record written into the partial bundle (or skipped) gets a scratch file in the run
-// directory (bundle/scratch_file.hpp), renamed into place when complete: its staged metadata and
-// where its chunks are in that partial bundle, the run's data file. After an interruption
-// --resume writes a new data file (the next generation) from the staged form read back, in
-// record order, so the bundle has the same bytes whatever the thread count or interruptions.
-std::string scratch_name(std::uint64_t index) { return fmt::format("rec-{:012}.stg", index); }
+// The records written into the partial bundle (or skipped) are noted in scratch files in the run
+// directory (bundle/scratch_file.hpp), renamed into place when complete: their staged metadata
+// and where their chunks are in that partial bundle, the run's data file. A scratch file
+// rec-<first>.stg holds the records from <first> written within kScratchInterval (each new file
+// costs the file system an inode, about 1 ms on a busy ext4; a kill loses at most that much
+// work). After an interruption --resume writes a new data file (the next generation) from the
+// staged form read back, in record order, so the bundle has the same bytes whatever the thread
+// count or interruptions.
+constexpr auto kScratchInterval = std::chrono::milliseconds(250);
+
+std::string scratch_name(std::uint64_t first) { return fmt::format("rec-{:012}.stg", first); }
+
+// The scratch files of the run by first record; removes partial files.
+std::map<std::uint64_t, fs::path> scratch_files(const fs::path& workdir) {
+  static const std::regex pattern(R"(rec-(\d{12})\.stg)");
+  std::map<std::uint64_t, fs::path> found;
+  for (const auto& entry : fs::directory_iterator(workdir)) {
+    const std::string name = entry.path().filename().string();
+    std::smatch m;
+    if (std::regex_match(name, m, pattern)) found.emplace(std::stoull(m[1]), entry.path());
+    else if (name.ends_with(".partial")) fs::remove(entry.path());
+  }
+  return found;
+}
 
 // The generations of the data files in the run directory.
 std::vector<std::uint64_t> data_generations(const fs::path& workdir) {
@@ -77,27 +96,37 @@ std::vector<std::uint64_t> data_generations(const fs::path& workdir) {
   return found;
 }
 
-// Index of the first record of the range without a scratch file; removes partial files.
-std::uint64_t scan_scratch(const fs::path& workdir, const RecordRange& range) {
-  static const std::regex pattern(R"(rec-(\d{12})\.stg)");
-  std::vector<std::uint64_t> done;
-  for (const auto& entry : fs::directory_iterator(workdir)) {
-    const std::string name = entry.path().filename().string();
-    std::smatch m;
-    if (std::regex_match(name, m, pattern)) done.push_back(std::stoull(m[1]));
-    else if (name.ends_with(".partial")) fs::remove(entry.path());
+// Records noted since the last scratch file, saved together.
+class ScratchBatch {
+ public:
+  explicit ScratchBatch(fs::path workdir) : workdir_(std::move(workdir)) {}
+  void add(std::uint64_t index, std::vector<unsigned char> entry) {
+    if (entries_.empty()) {
+      first_ = index;
+      started_ = std::chrono::steady_clock::now();
+    }
+    entries_.push_back(std::move(entry));
+    if (std::chrono::steady_clock::now() - started_ >= kScratchInterval) save();
   }
-  std::sort(done.begin(), done.end());
-  std::uint64_t next = range.begin;
-  for (std::uint64_t i : done) {
-    if (i != next) break;
-    ++next;
+  void save() {
+    if (entries_.empty()) return;
+    save_scratch(workdir_ / scratch_name(first_), entries_);
+    entries_.clear();
   }
-  // Anything past a gap would be rewritten anyway.
-  for (std::uint64_t i : done)
-    if (i >= next) fs::remove(workdir / scratch_name(i));
-  return std::min(next, range.end);
-}
+  // On the way out after another error: what can be saved is, a second error is not reported.
+  void save_quietly() noexcept {
+    try {
+      save();
+    } catch (...) {
+    }
+  }
+
+ private:
+  fs::path workdir_;
+  std::uint64_t first_ = 0;
+  std::chrono::steady_clock::time_point started_;
+  std::vector<std::vector<unsigned char>> entries_;
+};
 
 struct Manifest {
   std::string recipe_sha256;
@@ -302,6 +331,7 @@ GenerateResult generate(const GenerateOptions& options) {
 
   const Manifest manifest{recipe.sha256_hex, options.shard.index, options.shard.count, range.begin, range.end};
   std::uint64_t next = range.begin;
+  bool resuming = false;
   if (fs::exists(workdir)) {
     if (!fs::is_directory(workdir))
       throw InputError(fmt::format("{}: exists and is not a run directory; remove it", workdir.string()));
@@ -316,7 +346,7 @@ GenerateResult generate(const GenerateOptions& options) {
         throw InputError(fmt::format("--resume: the interrupted run in {} was shard {}/{}, this is {}/{}",
                                      workdir.string(), old.shard_index + 1, old.shard_count,
                                      manifest.shard_index + 1, manifest.shard_count));
-      next = scan_scratch(workdir, range);
+      resuming = true;
     } else if (options.force) {
       fs::remove_all(workdir);
     } else {
@@ -346,42 +376,50 @@ GenerateResult generate(const GenerateOptions& options) {
   wo.keep_temp = true;
   std::optional<BundleWriter> bundle;
   std::string damaged_note;
-  // Records into the bundle, each noted in its scratch file once its chunks are in the data file.
-  const auto write_record = [&](std::uint64_t k, StagedRecord&& record) {
+  // A record into the bundle; its scratch entry, to save once its chunks are in the data file.
+  const auto write_record = [&](StagedRecord&& record) {
     ScratchEntry entry;
     entry.generation = generation;
     bundle->write_staged(record, &entry.chunk_offsets);
     entry.record = std::move(record);
-    save_scratch(workdir / scratch_name(k), entry);
-  };
-  const auto skip_record = [&](const SkippedRecord& skipped) {
-    bundle->add_skipped(skipped);
-    save_scratch(workdir / scratch_name(skipped.record_index), ScratchEntry{std::nullopt, skipped, 0, {}});
+    return scratch_bytes(entry);
   };
   try {
     bundle.emplace(output, attributes, wo);
-    // The records an interrupted run saved, in order. A damaged scratch file or chunk (e.g. after
-    // a power cut) is made again, with everything after it.
-    for (std::uint64_t k = range.begin; k < next; ++k) {
-      const fs::path path = workdir / scratch_name(k);
-      std::optional<ScratchEntry> entry;
+    // The records an interrupted run saved, in order, file by file; each file is saved again
+    // pointing into the new data file. A damaged scratch file or chunk (e.g. after a power cut)
+    // is made again, with everything after it.
+    const std::map<std::uint64_t, fs::path> files = resuming ? scratch_files(workdir) : std::map<std::uint64_t, fs::path>{};
+    for (const auto& [first, path] : files) {
+      if (first != next) break;  // a gap: the rest is made again
+      std::vector<std::vector<unsigned char>> rebuilt;
+      std::string damage;
       try {
-        entry = load_scratch(path, workdir);
-        const std::uint64_t index = entry->record ? entry->record->row.record_index : entry->skipped->record_index;
-        if (index != k) throw RuntimeFailure(fmt::format("{}: holds record {}, not {}", path.string(), index, k));
+        for (ScratchEntry& e : load_scratch(path)) {
+          const std::uint64_t index = e.record ? e.record->row.record_index : e.skipped->record_index;
+          if (index != next || next >= range.end)
+            throw RuntimeFailure(fmt::format("{}: holds record {}, not {}", path.string(), index, next));
+          if (e.record) {
+            load_chunks(e, workdir, path);
+            rebuilt.push_back(write_record(std::move(*e.record)));
+          } else {
+            bundle->add_skipped(*e.skipped);
+            ++result.records_skipped;
+            rebuilt.push_back(scratch_bytes(e));
+          }
+          ++next;
+        }
       } catch (const RuntimeFailure& e) {
-        damaged_note = fmt::format("generate: {}; making records {} to {} again", e.what(), k, next - 1);
-        for (std::uint64_t j = k; j < next; ++j) fs::remove(workdir / scratch_name(j));
-        next = k;
+        damage = fmt::format("generate: {}; making record {} and those after it again", e.what(), next);
+      }
+      if (!rebuilt.empty()) save_scratch(path, rebuilt);
+      if (!damage.empty()) {
+        damaged_note = damage;
         break;
       }
-      if (entry->record) {
-        write_record(k, std::move(*entry->record));
-      } else {
-        bundle->add_skipped(*entry->skipped);
-        ++result.records_skipped;
-      }
     }
+    for (const auto& [first, path] : files)
+      if (first >= next) fs::remove(path);
     // Every saved record now points into this generation's data file.
     for (std::uint64_t g : generations) {
       std::error_code ec;  // one left behind is removed by the next start or with the run directory
@@ -405,6 +443,7 @@ GenerateResult generate(const GenerateOptions& options) {
   RecordPipeline pipeline(recipe, {next, range.end}, threads, synthesize, attributes);
 
   std::uint64_t i = next;
+  ScratchBatch batch(workdir);
   try {
     for (; i < range.end; ++i) {
       std::optional<Outcome> out = pipeline.take(i);
@@ -419,23 +458,28 @@ GenerateResult generate(const GenerateOptions& options) {
       }
       if (out->record) {
         const double duration_s = out->record->row.duration_s;
-        write_record(i, std::move(*out->record));
+        batch.add(i, write_record(std::move(*out->record)));
         ++result.records_written;
         progress.advance(duration_s);
       } else {
-        skip_record({out->record_id, i, out->failure});
+        const SkippedRecord skipped{out->record_id, i, out->failure};
+        bundle->add_skipped(skipped);
+        batch.add(i, scratch_bytes(ScratchEntry{std::nullopt, skipped, 0, {}, {}, {}}));
         ++result.records_skipped;
         progress.advance(0);
       }
     }
     pipeline.stop_and_join();
     if (i == range.end) bundle->finish();
+    else batch.save();
   } catch (const StopOnFailure&) {
     pipeline.stop_and_join();
+    batch.save_quietly();
     progress.finish();
     throw;
   } catch (const RuntimeFailure& e) {
     pipeline.stop_and_join();
+    batch.save_quietly();
     progress.finish();
     throw write_failure(e);
   }

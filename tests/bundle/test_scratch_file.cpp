@@ -72,32 +72,44 @@ TEST_CASE("a staged record read back from its scratch file writes the same bundl
     std::vector<std::vector<std::uint64_t>> offsets;
     const std::string one =
         test::read_bytes(write_bundle(dir.path() / data_file_name(7), a, direct, skipped, &offsets));
-    std::vector<StagedRecord> loaded;
+    // Record 0 alone in one scratch file, record 1 and the skipped note together in another.
+    std::vector<std::vector<std::vector<unsigned char>>> files(2);
+    std::size_t chunk_bytes = 0;
     for (std::size_t k = 0; k < direct.size(); ++k) {
-      const fs::path p = dir.path() / ("rec-" + std::to_string(k) + ".stg");
       REQUIRE(offsets[k].size() == chunk_count(direct[k]));
       ScratchEntry e;
       e.record = direct[k];
       e.generation = 7;
       e.chunk_offsets = offsets[k];
-      save_scratch(p, e);
-      REQUIRE_FALSE(fs::exists(p.string() + ".partial"));
-      // Only the metadata is in the scratch file: a fraction of the record's chunk bytes.
-      std::size_t chunk_bytes = 0;
+      files[k].push_back(scratch_bytes(e));
       for (const StagedObject& o : direct[k].objects)
         for (const auto& c : o.data.chunks) chunk_bytes += c.size();
-      CHECK(fs::file_size(p) < chunk_bytes / 4);
-      ScratchEntry back = load_scratch(p, dir.path());
-      REQUIRE(back.record.has_value());
-      REQUIRE_FALSE(back.skipped.has_value());
-      REQUIRE(back.generation == 7);
-      REQUIRE(back.chunk_offsets == offsets[k]);
-      loaded.push_back(*back.record);
     }
-    const fs::path skip_path = dir.path() / "skip.stg";
-    save_scratch(skip_path, ScratchEntry{std::nullopt, skipped, 0, {}});
-    const ScratchEntry skip = load_scratch(skip_path, dir.path());
+    files[1].push_back(scratch_bytes(ScratchEntry{std::nullopt, skipped, 0, {}, {}, {}}));
+    std::vector<ScratchEntry> back;
+    for (std::size_t f = 0; f < files.size(); ++f) {
+      const fs::path p = dir.path() / ("rec-" + std::to_string(f) + ".stg");
+      save_scratch(p, files[f]);
+      REQUIRE_FALSE(fs::exists(p.string() + ".partial"));
+      // Only the metadata is in the scratch file: a small fraction of the records' chunk bytes.
+      CHECK(fs::file_size(p) < chunk_bytes / 8);
+      std::vector<ScratchEntry> entries = load_scratch(p);
+      REQUIRE(entries.size() == files[f].size());
+      for (ScratchEntry& e : entries) back.push_back(std::move(e));
+    }
+    REQUIRE(back.size() == 3);
+    std::vector<StagedRecord> loaded;
+    for (std::size_t k = 0; k < 2; ++k) {
+      REQUIRE(back[k].record.has_value());
+      REQUIRE_FALSE(back[k].skipped.has_value());
+      REQUIRE(back[k].generation == 7);
+      REQUIRE(back[k].chunk_offsets == offsets[k]);
+      load_chunks(back[k], dir.path(), "rec.stg");
+      loaded.push_back(*back[k].record);
+    }
+    const ScratchEntry& skip = back[2];
     REQUIRE(skip.skipped.has_value());
+    REQUIRE_FALSE(skip.record.has_value());
     REQUIRE(skip.skipped->record_id == "r000002");
     REQUIRE(skip.skipped->record_index == 2);
     REQUIRE(skip.skipped->reason == "the run-in did not settle");
@@ -121,8 +133,13 @@ TEST_CASE("a damaged, truncated or extended scratch file or data file is refused
   e.record = record;
   e.generation = 1;
   e.chunk_offsets = offsets.at(0);
-  save_scratch(good, e);
-  REQUIRE_NOTHROW(load_scratch(good, dir.path()));
+  save_scratch(good, {scratch_bytes(e)});
+  const auto load = [&](const fs::path& p) {
+    std::vector<ScratchEntry> entries = load_scratch(p);
+    for (ScratchEntry& entry : entries) load_chunks(entry, dir.path(), p);
+    return entries;
+  };
+  REQUIRE(load(good).size() == 1);
   const std::string bytes = test::read_bytes(good);
   REQUIRE(bytes.size() > 1000);
   const auto refused = [&](const std::string& content, const std::string& data_content) {
@@ -130,7 +147,7 @@ TEST_CASE("a damaged, truncated or extended scratch file or data file is refused
     std::ofstream(p, std::ios::binary | std::ios::trunc) << content;
     std::ofstream(data, std::ios::binary | std::ios::trunc) << data_content;
     try {
-      load_scratch(p, dir.path());
+      load(p);
     } catch (const RuntimeFailure& err) {
       return std::string(err.what()).find("damaged scratch file") != std::string::npos;
     }
@@ -161,11 +178,11 @@ TEST_CASE("a damaged, truncated or extended scratch file or data file is refused
   {
     const fs::path p = dir.path() / "bad.stg";
     std::ofstream(p, std::ios::binary | std::ios::trunc) << bytes;
-    REQUIRE_THROWS_WITH(load_scratch(p, dir.path()), Catch::Contains("damaged scratch file") && Catch::Contains("missing"));
+    REQUIRE_THROWS_WITH(load(p), Catch::Contains("damaged scratch file") && Catch::Contains("missing"));
   }
   // The same bytes load again once the data file is back.
   std::ofstream(data, std::ios::binary | std::ios::trunc) << data_bytes;
-  REQUIRE(load_scratch(good, dir.path()).record.has_value());
+  REQUIRE(load(good).at(0).record.has_value());
 }
 
 TEST_CASE("a scratch file that cannot be written is a clear error and leaves nothing", "[bundle][scratch]") {
@@ -173,6 +190,7 @@ TEST_CASE("a scratch file that cannot be written is a clear error and leaves not
   const fs::path p = dir.path() / "missing-folder" / "rec.stg";
   ScratchEntry e;
   e.skipped = SkippedRecord{"r000000", 0, "reason"};
-  REQUIRE_THROWS_WITH(save_scratch(p, e), Catch::Contains("cannot create") && Catch::Contains("No such file"));
+  REQUIRE_THROWS_WITH(save_scratch(p, {scratch_bytes(e)}),
+                      Catch::Contains("cannot create") && Catch::Contains("No such file"));
   REQUIRE_FALSE(fs::exists(p.string() + ".partial"));
 }
