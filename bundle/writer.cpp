@@ -56,6 +56,8 @@ struct BundleWriter::Impl {
   std::optional<IndexSpill> index;
   std::vector<SkippedRecord> skipped;
   bool open = false;
+  // Durable files: bytes handed to the kernel for writing to disk so far (start_writeback).
+  std::uint64_t writeback_bytes = 0;
 
   std::string where(const std::string& object) const { return fmt::format("{}: {}", temp.string(), object); }
 
@@ -157,6 +159,22 @@ struct BundleWriter::Impl {
     h5::set_attr(ds, "units", units);
   }
 
+  // A durable file is flushed to disk by finish(); its data is sent on its way as it grows, so
+  // that flush waits only for the last few MiB instead of the whole file (about 85 ms for a
+  // 170 MB bundle, serial at the end of a run). sync_file_range only starts the writeback (the
+  // same kernel work fsync would do later); it is no durability promise in itself.
+  static constexpr std::uint64_t kWritebackBytes = 8u << 20;
+  void start_writeback() {
+    hsize_t size = 0;
+    if (!options.durable || H5Fget_filesize(file, &size) < 0 || size < writeback_bytes + kWritebackBytes) return;
+    void* handle = nullptr;
+    if (H5Fget_vfd_handle(file, H5P_DEFAULT, &handle) < 0 || !handle) return;
+    const int fd = *static_cast<int*>(handle);  // the default (sec2) driver's handle: its descriptor
+    ::sync_file_range(fd, static_cast<off_t>(writeback_bytes), static_cast<off_t>(size - writeback_bytes),
+                      SYNC_FILE_RANGE_WRITE);  // best effort: finish() flushes and checks
+    writeback_bytes = size;
+  }
+
   void close_and_remove() noexcept {
     records.reset();
     file.reset();
@@ -240,6 +258,7 @@ void BundleWriter::write_staged(const StagedRecord& record, std::vector<std::uin
     throw RuntimeFailure(fmt::format("{}: record {}: {}", m.temp.string(), id, e.what()));
   }
   m.index->append(record.row);
+  m.start_writeback();
 }
 
 void BundleWriter::copy_record(const BundleReader& source, const std::string& record_id) {
