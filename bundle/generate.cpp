@@ -62,12 +62,13 @@ class SignalScope {
 // The records written into the partial bundle (or skipped) are noted in scratch files in the run
 // directory (bundle/scratch_file.hpp), renamed into place when complete: their staged metadata
 // and where their chunks are in that partial bundle, the run's data file. A scratch file
-// rec-<first>.stg holds the records from <first> written within kScratchInterval (each new file
-// costs the file system an inode, about 1 ms on a busy ext4; a kill loses at most that much
-// work). After an interruption --resume writes a new data file (the next generation) from the
+// rec-<first>.stg holds the records from <first> written within kScratchInterval, at most
+// kScratchRecords of them (each new file costs the file system an inode, about 1 ms on a busy
+// ext4; a kill loses at most that much work). After an interruption --resume writes a new data file (the next generation) from the
 // staged form read back, in record order, so the bundle has the same bytes whatever the thread
 // count or interruptions.
 constexpr auto kScratchInterval = std::chrono::milliseconds(250);
+constexpr std::size_t kScratchRecords = 16;
 
 std::string scratch_name(std::uint64_t first) { return fmt::format("rec-{:012}.stg", first); }
 
@@ -106,7 +107,7 @@ class ScratchBatch {
       started_ = std::chrono::steady_clock::now();
     }
     entries_.push_back(std::move(entry));
-    if (std::chrono::steady_clock::now() - started_ >= kScratchInterval) save();
+    if (entries_.size() >= kScratchRecords || std::chrono::steady_clock::now() - started_ >= kScratchInterval) save();
   }
   void save() {
     if (entries_.empty()) return;

@@ -21,7 +21,7 @@ namespace fs = std::filesystem;
 
 namespace {
 
-// The run's scratch files (each holds the records of about a quarter second), in record order.
+// The run's scratch files (each holds the records of a quarter second, at most 16), in record order.
 std::vector<fs::path> scratch_files(const fs::path& workdir) {
   std::vector<fs::path> found;
   std::error_code ec;
