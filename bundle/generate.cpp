@@ -8,13 +8,13 @@
 #include <fstream>
 #include <map>
 #include <mutex>
-#include <regex>
 #include <thread>
 
 #include <fmt/format.h>
 #include <nlohmann/json.hpp>
 
 #include "bundle/chunk_codec.hpp"
+#include "bundle/run_directory.hpp"
 #include "bundle/scratch_file.hpp"
 #include "bundle/staged_record.hpp"
 #include "bundle/writer.hpp"
@@ -57,76 +57,6 @@ class SignalScope {
   void (*old_int_)(int);
   void (*old_term_)(int);
   void (*old_xfsz_)(int);
-};
-
-// The records written into the partial bundle (or skipped) are noted in scratch files in the run
-// directory (bundle/scratch_file.hpp), renamed into place when complete: their staged metadata
-// and where their chunks are in that partial bundle, the run's data file. A scratch file
-// rec-<first>.stg holds the records from <first> written within kScratchInterval, at most
-// kScratchRecords of them (each new file costs the file system an inode, about 1 ms on a busy
-// ext4; a kill loses at most that much work). After an interruption --resume writes a new data file (the next generation) from the
-// staged form read back, in record order, so the bundle has the same bytes whatever the thread
-// count or interruptions.
-constexpr auto kScratchInterval = std::chrono::milliseconds(250);
-constexpr std::size_t kScratchRecords = 16;
-
-std::string scratch_name(std::uint64_t first) { return fmt::format("rec-{:012}.stg", first); }
-
-// The scratch files of the run by first record; removes partial files.
-std::map<std::uint64_t, fs::path> scratch_files(const fs::path& workdir) {
-  static const std::regex pattern(R"(rec-(\d{12})\.stg)");
-  std::map<std::uint64_t, fs::path> found;
-  for (const auto& entry : fs::directory_iterator(workdir)) {
-    const std::string name = entry.path().filename().string();
-    std::smatch m;
-    if (std::regex_match(name, m, pattern)) found.emplace(std::stoull(m[1]), entry.path());
-    else if (name.ends_with(".partial")) fs::remove(entry.path());
-  }
-  return found;
-}
-
-// The generations of the data files in the run directory.
-std::vector<std::uint64_t> data_generations(const fs::path& workdir) {
-  static const std::regex pattern(R"(bundle-(\d{1,18})\.h5)");
-  std::vector<std::uint64_t> found;
-  for (const auto& entry : fs::directory_iterator(workdir)) {
-    const std::string name = entry.path().filename().string();
-    std::smatch m;
-    if (std::regex_match(name, m, pattern)) found.push_back(std::stoull(m[1]));
-  }
-  return found;
-}
-
-// Records noted since the last scratch file, saved together.
-class ScratchBatch {
- public:
-  explicit ScratchBatch(fs::path workdir) : workdir_(std::move(workdir)) {}
-  void add(std::uint64_t index, std::vector<unsigned char> entry) {
-    if (entries_.empty()) {
-      first_ = index;
-      started_ = std::chrono::steady_clock::now();
-    }
-    entries_.push_back(std::move(entry));
-    if (entries_.size() >= kScratchRecords || std::chrono::steady_clock::now() - started_ >= kScratchInterval) save();
-  }
-  void save() {
-    if (entries_.empty()) return;
-    save_scratch(workdir_ / scratch_name(first_), entries_);
-    entries_.clear();
-  }
-  // On the way out after another error: what can be saved is, a second error is not reported.
-  void save_quietly() noexcept {
-    try {
-      save();
-    } catch (...) {
-    }
-  }
-
- private:
-  fs::path workdir_;
-  std::uint64_t first_ = 0;
-  std::chrono::steady_clock::time_point started_;
-  std::vector<std::vector<unsigned char>> entries_;
 };
 
 struct Manifest {
@@ -369,6 +299,8 @@ GenerateResult generate(const GenerateOptions& options) {
   // renamed into place at the end; an interrupted run leaves only its scratch files.
   // The data file of this start: a new generation, so the chunks of earlier ones stay readable
   // until every record saved there is written again (a kill during the rebuild loses nothing).
+  // The bundle is always written from the staged records, in record order, so it has the same
+  // bytes whatever the thread count or interruptions (bundle/run_directory.hpp).
   const std::vector<std::uint64_t> generations = data_generations(workdir);
   const std::uint64_t generation = generations.empty() ? 1 : *std::max_element(generations.begin(), generations.end()) + 1;
   WriterOptions wo;
