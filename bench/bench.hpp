@@ -35,8 +35,8 @@ StageTimes time_stages(const recipe::Recipe& recipe, std::uint64_t records, std:
 // Writing the records as `generate` does (bench/writing_timing.cpp): thread CPU seconds summed
 // over records, and the final bundle's size.
 struct WritingTimes {
-  double encode_s = 0;    // chunk filtering (shuffle, deflate, Fletcher32), staging, the scratch file: synthesis threads
-  double store_s = 0;     // the staged records into the bundle: the single HDF5 thread
+  double encode_s = 0;    // chunk filtering (shuffle, deflate, Fletcher32), staging: synthesis threads
+  double store_s = 0;     // the staged records into the bundle, their scratch files: the single HDF5 thread
   double assemble_s = 0;  // finishing the bundle (index, flush, close): single thread, after the last record
   double audio_s = 0;
   std::uint64_t bytes = 0, records = 0;

@@ -58,7 +58,7 @@ double print_writing(const std::vector<Record>& records, const recipe::Recipe& r
                static_cast<double>(w.bytes) / 1e6 / (w.audio_s / 3600.0), c == recipe.dataset.compression ? "  (recipe)" : "");
     if (c == recipe.dataset.compression) chosen = w.total_s();
   }
-  fmt::print("  encode (filtering, staging, scratch file) runs on the synthesis threads; store (into the bundle) and "
+  fmt::print("  encode (filtering, staging) runs on the synthesis threads; store (into the bundle, scratch file) and "
              "assemble (index, close) on generate's single HDF5 thread\n");
   const double whole = t.pipeline + chosen;
   fmt::print("Whole pipeline (synthesis + writing, compression \"{}\"): {:.2f} ms per record, {:.0f}x real time on "

@@ -1,6 +1,6 @@
 // Writing, as `generate` does it (bundle/generate.cpp): each record's chunks filtered and staged
-// (encode_record, stage_record) and its scratch file saved, on a synthesis thread there; the
-// staged record written into the bundle (the single HDF5 thread); the bundle finished (its index,
+// (encode_record, stage_record), on a synthesis thread there; the staged record written into the
+// bundle and its scratch file saved (the single HDF5 thread); the bundle finished (its index,
 // flush, close, rename). Thread CPU time of each step, and the final file's size.
 #include <filesystem>
 
@@ -37,6 +37,7 @@ WritingTimes time_writing(const std::vector<Record>& records, const recipe::Reci
   const double c0 = thread_cpu_s();
   bundle::BundleWriter writer(final_path, attributes, options);
   t.store_s += thread_cpu_s() - c0;
+  std::vector<std::vector<unsigned char>> batch;
   for (std::size_t i = 0; i < records.size(); ++i) {
     const Record& r = records[i];
     const double c1 = thread_cpu_s();
@@ -44,9 +45,14 @@ WritingTimes time_writing(const std::vector<Record>& records, const recipe::Reci
     entry.record = bundle::stage_record(
         r, bundle::encode_record(r, bundle::RecordParts::all(), settings.sample_format, settings.compression),
         bundle::RecordParts::all(), settings);
-    bundle::save_scratch(dir / fmt::format("rec-{:012}.stg", i), entry);
     const double c2 = thread_cpu_s();
-    writer.write_staged(*entry.record);
+    writer.write_staged(*entry.record, &entry.chunk_offsets);
+    // generate saves a scratch file per quarter second of records: about 8 records of 30 s.
+    batch.push_back(bundle::scratch_bytes(entry));
+    if (batch.size() == 8 || i + 1 == records.size()) {
+      bundle::save_scratch(dir / fmt::format("rec-{:012}.stg", i + 1 - batch.size()), batch);
+      batch.clear();
+    }
     const double c3 = thread_cpu_s();
     t.encode_s += c2 - c1;
     t.store_s += c3 - c2;

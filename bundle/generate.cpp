@@ -2,18 +2,19 @@
 
 #include <algorithm>
 #include <atomic>
+#include <chrono>
 #include <condition_variable>
 #include <csignal>
 #include <fstream>
 #include <map>
 #include <mutex>
-#include <regex>
 #include <thread>
 
 #include <fmt/format.h>
 #include <nlohmann/json.hpp>
 
 #include "bundle/chunk_codec.hpp"
+#include "bundle/run_directory.hpp"
 #include "bundle/scratch_file.hpp"
 #include "bundle/staged_record.hpp"
 #include "bundle/writer.hpp"
@@ -58,34 +59,6 @@ class SignalScope {
   void (*old_xfsz_)(int);
 };
 
-// Each finished record (or skipped-record note) is a scratch file in the run directory
-// (bundle/scratch_file.hpp), renamed into place when complete, from which --resume rebuilds the
-// records written before an interruption. The bundle itself is written once, in record order,
-// from the same staged form, so it has the same bytes whatever the thread count or interruptions.
-std::string scratch_name(std::uint64_t index) { return fmt::format("rec-{:012}.stg", index); }
-
-// Index of the first record of the range without a scratch file; removes partial files.
-std::uint64_t scan_scratch(const fs::path& workdir, const RecordRange& range) {
-  static const std::regex pattern(R"(rec-(\d{12})\.stg)");
-  std::vector<std::uint64_t> done;
-  for (const auto& entry : fs::directory_iterator(workdir)) {
-    const std::string name = entry.path().filename().string();
-    std::smatch m;
-    if (std::regex_match(name, m, pattern)) done.push_back(std::stoull(m[1]));
-    else if (name.ends_with(".partial")) fs::remove(entry.path());
-  }
-  std::sort(done.begin(), done.end());
-  std::uint64_t next = range.begin;
-  for (std::uint64_t i : done) {
-    if (i != next) break;
-    ++next;
-  }
-  // Anything past a gap would be rewritten anyway.
-  for (std::uint64_t i : done)
-    if (i >= next) fs::remove(workdir / scratch_name(i));
-  return std::min(next, range.end);
-}
-
 struct Manifest {
   std::string recipe_sha256;
   std::uint32_t shard_index = 0, shard_count = 1;
@@ -118,17 +91,15 @@ struct StopOnFailure : RuntimeFailure {
   using RuntimeFailure::RuntimeFailure;
 };
 
-// One synthesised record as the bundle stores it, or the reason it failed; saved to its scratch
-// file by then (save_error: why that failed, a write error that stops the run).
+// One synthesised record as the bundle stores it, or the reason it failed.
 struct Outcome {
   std::optional<StagedRecord> record;
   std::string record_id;
   std::string failure;
-  std::string save_error;
 };
 
 // Synthesises records [begin, end) on worker threads, and stages them there too (chunks filtered:
-// shuffle, deflate, checksums, the costly part of writing) and saves their scratch files; take(i)
+// shuffle, deflate, checksums, the costly part of writing); take(i)
 // hands them to the single HDF5 writer in index order. At most `window` records are held at
 // once, so memory is flat in the record count.
 // With one thread there are no workers: take(i) synthesises record i itself, so `--threads 1`
@@ -136,10 +107,9 @@ struct Outcome {
 class RecordPipeline {
  public:
   RecordPipeline(const recipe::Recipe& recipe, RecordRange todo, unsigned threads,
-                 std::function<Record(const SubjectSpec&)> synthesize, const BundleAttributes& attributes,
-                 fs::path workdir, bool save_failures)
+                 std::function<Record(const SubjectSpec&)> synthesize, const BundleAttributes& attributes)
       : recipe_(recipe), synthesize_(std::move(synthesize)), settings_(staging_settings(attributes)),
-        workdir_(std::move(workdir)), save_failures_(save_failures), next_dispatch_(todo.begin), end_(todo.end),
+        next_dispatch_(todo.begin), end_(todo.end),
         next_write_(todo.begin),
         window_(2 * threads), inline_(threads <= 1) {
     if (!inline_)
@@ -206,7 +176,7 @@ class RecordPipeline {
     }
   }
 
-  // Record i synthesised and staged, or why it failed; its scratch file saved.
+  // Record i synthesised and staged, or why it failed.
   Outcome produce(std::uint64_t i) {
     Outcome out;
     out.record_id = recipe::record_id(i);
@@ -220,24 +190,12 @@ class RecordPipeline {
     } catch (const std::exception& e) {
       out.failure = e.what();
     }
-    ScratchEntry entry;
-    if (out.record) entry.record = std::move(out.record);
-    else if (save_failures_) entry.skipped = SkippedRecord{out.record_id, i, out.failure};
-    else return out;
-    try {
-      save_scratch(workdir_ / scratch_name(i), entry);
-    } catch (const std::exception& e) {
-      out.save_error = e.what();
-    }
-    out.record = std::move(entry.record);
     return out;
   }
 
   const recipe::Recipe& recipe_;
   std::function<Record(const SubjectSpec&)> synthesize_;
   StagingSettings settings_;
-  fs::path workdir_;
-  bool save_failures_;
   std::mutex mu_;
   std::condition_variable done_cv_, space_cv_;
   std::map<std::uint64_t, Outcome> results_;
@@ -304,6 +262,7 @@ GenerateResult generate(const GenerateOptions& options) {
 
   const Manifest manifest{recipe.sha256_hex, options.shard.index, options.shard.count, range.begin, range.end};
   std::uint64_t next = range.begin;
+  bool resuming = false;
   if (fs::exists(workdir)) {
     if (!fs::is_directory(workdir))
       throw InputError(fmt::format("{}: exists and is not a run directory; remove it", workdir.string()));
@@ -318,7 +277,7 @@ GenerateResult generate(const GenerateOptions& options) {
         throw InputError(fmt::format("--resume: the interrupted run in {} was shard {}/{}, this is {}/{}",
                                      workdir.string(), old.shard_index + 1, old.shard_count,
                                      manifest.shard_index + 1, manifest.shard_count));
-      next = scan_scratch(workdir, range);
+      resuming = true;
     } else if (options.force) {
       fs::remove_all(workdir);
     } else {
@@ -338,34 +297,66 @@ GenerateResult generate(const GenerateOptions& options) {
   };
   // The bundle is written as the records come, under a temporary name in the run directory, and
   // renamed into place at the end; an interrupted run leaves only its scratch files.
+  // The data file of this start: a new generation, so the chunks of earlier ones stay readable
+  // until every record saved there is written again (a kill during the rebuild loses nothing).
+  // The bundle is always written from the staged records, in record order, so it has the same
+  // bytes whatever the thread count or interruptions (bundle/run_directory.hpp).
+  const std::vector<std::uint64_t> generations = data_generations(workdir);
+  const std::uint64_t generation = generations.empty() ? 1 : *std::max_element(generations.begin(), generations.end()) + 1;
   WriterOptions wo;
   wo.overwrite = options.force;
-  wo.temp_path = workdir / "bundle.h5.partial";
+  wo.temp_path = workdir / data_file_name(generation);
+  wo.keep_temp = true;
   std::optional<BundleWriter> bundle;
   std::string damaged_note;
+  // A record into the bundle; its scratch entry, to save once its chunks are in the data file.
+  const auto write_record = [&](StagedRecord&& record) {
+    ScratchEntry entry;
+    entry.generation = generation;
+    bundle->write_staged(record, &entry.chunk_offsets);
+    entry.record = std::move(record);
+    return scratch_bytes(entry);
+  };
   try {
     bundle.emplace(output, attributes, wo);
-    // The records an interrupted run saved, in order. A damaged scratch file (e.g. after a power
-    // cut) is made again, with everything after it.
-    for (std::uint64_t k = range.begin; k < next; ++k) {
-      const fs::path path = workdir / scratch_name(k);
-      std::optional<ScratchEntry> entry;
+    // The records an interrupted run saved, in order, file by file; each file is saved again
+    // pointing into the new data file. A damaged scratch file or chunk (e.g. after a power cut)
+    // is made again, with everything after it.
+    const std::map<std::uint64_t, fs::path> files = resuming ? scratch_files(workdir) : std::map<std::uint64_t, fs::path>{};
+    for (const auto& [first, path] : files) {
+      if (first != next) break;  // a gap: the rest is made again
+      std::vector<std::vector<unsigned char>> rebuilt;
+      std::string damage;
       try {
-        entry = load_scratch(path);
-        const std::uint64_t index = entry->record ? entry->record->row.record_index : entry->skipped->record_index;
-        if (index != k) throw RuntimeFailure(fmt::format("{}: holds record {}, not {}", path.string(), index, k));
+        for (ScratchEntry& e : load_scratch(path)) {
+          const std::uint64_t index = e.record ? e.record->row.record_index : e.skipped->record_index;
+          if (index != next || next >= range.end)
+            throw RuntimeFailure(fmt::format("{}: holds record {}, not {}", path.string(), index, next));
+          if (e.record) {
+            load_chunks(e, workdir, path);
+            rebuilt.push_back(write_record(std::move(*e.record)));
+          } else {
+            bundle->add_skipped(*e.skipped);
+            ++result.records_skipped;
+            rebuilt.push_back(scratch_bytes(e));
+          }
+          ++next;
+        }
       } catch (const RuntimeFailure& e) {
-        damaged_note = fmt::format("generate: {}; making records {} to {} again", e.what(), k, next - 1);
-        for (std::uint64_t j = k; j < next; ++j) fs::remove(workdir / scratch_name(j));
-        next = k;
+        damage = fmt::format("generate: {}; making record {} and those after it again", e.what(), next);
+      }
+      if (!rebuilt.empty()) save_scratch(path, rebuilt);
+      if (!damage.empty()) {
+        damaged_note = damage;
         break;
       }
-      if (entry->record) {
-        bundle->write_staged(*entry->record);
-      } else {
-        bundle->add_skipped(*entry->skipped);
-        ++result.records_skipped;
-      }
+    }
+    for (const auto& [first, path] : files)
+      if (first >= next) fs::remove(path);
+    // Every saved record now points into this generation's data file.
+    for (std::uint64_t g : generations) {
+      std::error_code ec;  // one left behind is removed by the next start or with the run directory
+      if (g != generation) fs::remove(workdir / data_file_name(g), ec);
     }
   } catch (const RuntimeFailure& e) {
     throw write_failure(e);
@@ -382,9 +373,10 @@ GenerateResult generate(const GenerateOptions& options) {
   unsigned threads = options.threads ? options.threads : std::max(1u, std::thread::hardware_concurrency());
   auto synthesize = options.synthesize ? options.synthesize
                                        : [](const SubjectSpec& s) { return gen::synthesize_record(s); };
-  RecordPipeline pipeline(recipe, {next, range.end}, threads, synthesize, attributes, workdir, skip_failures);
+  RecordPipeline pipeline(recipe, {next, range.end}, threads, synthesize, attributes);
 
   std::uint64_t i = next;
+  ScratchBatch batch(workdir);
   try {
     for (; i < range.end; ++i) {
       std::optional<Outcome> out = pipeline.take(i);
@@ -397,25 +389,30 @@ GenerateResult generate(const GenerateOptions& options) {
               out->record_id, out->failure, i - range.begin, workdir.string()));
         progress.note(fmt::format("generate: skipped record {}: {}", out->record_id, out->failure));
       }
-      if (!out->save_error.empty()) throw RuntimeFailure(out->save_error);
       if (out->record) {
-        bundle->write_staged(*out->record);
+        const double duration_s = out->record->row.duration_s;
+        batch.add(i, write_record(std::move(*out->record)));
         ++result.records_written;
-        progress.advance(out->record->row.duration_s);
+        progress.advance(duration_s);
       } else {
-        bundle->add_skipped({out->record_id, i, out->failure});
+        const SkippedRecord skipped{out->record_id, i, out->failure};
+        bundle->add_skipped(skipped);
+        batch.add(i, scratch_bytes(ScratchEntry{std::nullopt, skipped, 0, {}, {}, {}}));
         ++result.records_skipped;
         progress.advance(0);
       }
     }
     pipeline.stop_and_join();
     if (i == range.end) bundle->finish();
+    else batch.save();
   } catch (const StopOnFailure&) {
     pipeline.stop_and_join();
+    batch.save_quietly();
     progress.finish();
     throw;
   } catch (const RuntimeFailure& e) {
     pipeline.stop_and_join();
+    batch.save_quietly();
     progress.finish();
     throw write_failure(e);
   }

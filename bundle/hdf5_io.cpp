@@ -319,17 +319,29 @@ Id create_encoded(hid_t parent, const std::string& name, const EncodedArray& a, 
   return Id(check(H5Dcreate2(parent, name.c_str(), file_type >= 0 ? file_type : file_type_of(a.type), space, H5P_DEFAULT, dcpl, H5P_DEFAULT), name));
 }
 
-void write_chunk(hid_t dataset, const EncodedArray& a, std::size_t k, const std::vector<unsigned char>& chunk,
-                 const std::string& name) {
+std::uint64_t write_chunk(hid_t dataset, const EncodedArray& a, std::size_t k, const std::vector<unsigned char>& chunk,
+                          const std::string& name, bool locate) {
   const std::size_t per_row = a.chunks_per_row();
   const hsize_t two_d[2] = {k / per_row, (k % per_row) * a.chunk_cols};
   const hsize_t* offset = a.one_d ? &two_d[1] : two_d;
   check_status(H5Dwrite_chunk(dataset, H5P_DEFAULT, 0, offset, chunk.size(), chunk.data()), name);
+  if (!locate) return 0;
+  unsigned filter_mask = 0;
+  haddr_t address = HADDR_UNDEF;
+  hsize_t stored = 0;
+  check_status(H5Dget_chunk_info_by_coord(dataset, offset, &filter_mask, &address, &stored), name);
+  if (address == HADDR_UNDEF || stored != chunk.size())
+    throw RuntimeFailure(name + ": chunk " + std::to_string(k) + " not found after writing it");
+  return address;
 }
 
-Id write_encoded(hid_t parent, const std::string& name, const EncodedArray& a, hid_t file_type) {
+Id write_encoded(hid_t parent, const std::string& name, const EncodedArray& a, hid_t file_type,
+                 std::vector<std::uint64_t>* chunk_offsets) {
   Id ds = create_encoded(parent, name, a, file_type);
-  for (std::size_t k = 0; k < a.chunks.size(); ++k) write_chunk(ds, a, k, a.chunks[k], name);
+  for (std::size_t k = 0; k < a.chunks.size(); ++k) {
+    const std::uint64_t at = write_chunk(ds, a, k, a.chunks[k], name, chunk_offsets != nullptr);
+    if (chunk_offsets) chunk_offsets->push_back(at);
+  }
   return ds;
 }
 

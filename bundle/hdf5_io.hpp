@@ -113,13 +113,16 @@ Id write_array(hid_t parent, const std::string& name, const void* data, hid_t me
 // The little-endian file type each stored type is written as.
 hid_t file_type_of(StoredType t);
 // file_type: the stored type; -1 = file_type_of(array.type) (a packed table needs compound_type).
-Id write_encoded(hid_t parent, const std::string& name, const EncodedArray& array, hid_t file_type = -1);
+// chunk_offsets (if given) gets each chunk's byte offset in the file, in chunk order.
+Id write_encoded(hid_t parent, const std::string& name, const EncodedArray& array, hid_t file_type = -1,
+                 std::vector<std::uint64_t>* chunk_offsets = nullptr);
 // The two halves of write_encoded, for a dataset whose chunks come one at a time: the dataset of
 // `array`'s shape and filters (chunked unless array.chunk_cols is 0; its chunks are ignored), and
 // chunk k of it (in the order of EncodedArray::chunks).
 Id create_encoded(hid_t parent, const std::string& name, const EncodedArray& array, hid_t file_type = -1);
-void write_chunk(hid_t dataset, const EncodedArray& array, std::size_t k, const std::vector<unsigned char>& chunk,
-                 const std::string& name);
+// Returns the chunk's byte offset in the file when `locate` (HDF5 writes a chunk straight to the file).
+std::uint64_t write_chunk(hid_t dataset, const EncodedArray& array, std::size_t k,
+                          const std::vector<unsigned char>& chunk, const std::string& name, bool locate = false);
 std::vector<std::uint64_t> shape(hid_t dataset);
 // Reads a whole dataset converted to mem_type; out must hold the element count.
 void read_all(hid_t dataset, hid_t mem_type, void* out, const std::string& what, hid_t dxpl = H5P_DEFAULT);

@@ -20,7 +20,7 @@ namespace fs = std::filesystem;
 
 namespace {
 
-constexpr char kMagic[8] = {'S', 'T', 'G', 'S', 'C', 'R', '0', '1'};
+constexpr char kMagic[8] = {'S', 'T', 'G', 'S', 'C', 'R', '0', '2'};
 // Sanity bounds against a damaged header (a 30 s record has about 100 chunks and 40 attributes).
 constexpr std::uint64_t kMaxCount = 1u << 24;
 
@@ -94,6 +94,13 @@ class In {
     return v;
   }
   bool done() const { return p_ == end_; }
+  // The next n bytes, skipped over.
+  const unsigned char* take(std::uint64_t n) {
+    need(n);
+    const unsigned char* p = p_;
+    p_ += n;
+    return p;
+  }
 
  private:
   void need(std::uint64_t n) {
@@ -162,8 +169,8 @@ std::vector<StagedAttribute> get_attributes(In& in) {
   return out;
 }
 
-// The array's description; the chunk bytes follow the header.
-void put_array(Out& o, const EncodedArray& a) {
+// The array's description and where its chunks are in the data file (offsets from `next`).
+void put_array(Out& o, const EncodedArray& a, const std::vector<std::uint64_t>& offsets, std::size_t& next) {
   for (std::uint64_t v : {std::uint64_t(a.rows), std::uint64_t(a.cols), std::uint64_t(a.chunk_cols),
                           std::uint64_t(a.element_bytes)})
     o.u64(v);
@@ -177,10 +184,11 @@ void put_array(Out& o, const EncodedArray& a) {
   for (const auto& c : a.chunks) {
     o.u64(c.size());
     o.raw(chunk_check(c, a.filters.fletcher32));
+    o.u64(offsets.at(next++));
   }
 }
-// Fills everything but the chunk bytes; sizes and checks go to `checks`.
-void get_array(In& in, EncodedArray& a, std::vector<std::uint32_t>& checks) {
+// Fills everything but the chunk bytes; their sizes, checks and offsets go to the entry.
+void get_array(In& in, EncodedArray& a, ScratchEntry& e) {
   a.rows = in.u64();
   a.cols = in.u64();
   a.chunk_cols = in.u64();
@@ -197,12 +205,13 @@ void get_array(In& in, EncodedArray& a, std::vector<std::uint32_t>& checks) {
   for (auto& c : a.chunks) {
     const std::uint64_t n = in.u64();
     if (n > (std::uint64_t(1) << 32)) throw std::runtime_error("implausible chunk size");
-    c.resize(n);
-    checks.push_back(in.raw<std::uint32_t>());
+    e.chunk_bytes.push_back(n);  // read (and sized) by load_chunks
+    e.chunk_checks.push_back(in.raw<std::uint32_t>());
+    e.chunk_offsets.push_back(in.u64());
   }
 }
 
-std::vector<unsigned char> header_of(const ScratchEntry& e) {
+std::vector<unsigned char> entry_bytes(const ScratchEntry& e) {
   Out o;
   if (e.skipped) {
     o.u8(1);
@@ -212,10 +221,15 @@ std::vector<unsigned char> header_of(const ScratchEntry& e) {
     return std::move(o.bytes);
   }
   const StagedRecord& r = *e.record;
+  std::size_t chunks = 0;
+  for (const StagedObject& obj : r.objects) chunks += obj.data.chunks.size();
+  if (e.chunk_offsets.size() != chunks) throw std::logic_error("scratch_bytes: one offset per chunk");
   o.u8(0);
+  o.u64(e.generation);
   put_row(o, r.row);
   put_attributes(o, r.attributes);
   o.u64(r.objects.size());
+  std::size_t next = 0;
   for (const StagedObject& obj : r.objects) {
     o.u8(obj.group);
     o.str(obj.path);
@@ -227,7 +241,7 @@ std::vector<unsigned char> header_of(const ScratchEntry& e) {
       o.u64(m.offset);
       o.u64(m.bytes);
     }
-    put_array(o, obj.data);
+    put_array(o, obj.data, e.chunk_offsets, next);
   }
   return std::move(o.bytes);
 }
@@ -267,6 +281,19 @@ class File {
     }
     return true;
   }
+  // False at a premature end of file.
+  bool read_at(unsigned char* p, std::size_t n, std::uint64_t offset) {
+    while (n) {
+      const ssize_t k = ::pread(fd_, p, n, static_cast<off_t>(offset));
+      if (k < 0 && errno == EINTR) continue;
+      if (k < 0) fail(path_, "cannot read", errno);
+      if (k == 0) return false;
+      p += k;
+      offset += static_cast<std::uint64_t>(k);
+      n -= static_cast<std::size_t>(k);
+    }
+    return true;
+  }
   void close() {
     const int fd = fd_;
     fd_ = -1;
@@ -280,22 +307,28 @@ class File {
 
 }  // namespace
 
-void save_scratch(const fs::path& path, const ScratchEntry& entry) {
+std::vector<unsigned char> scratch_bytes(const ScratchEntry& entry) {
   if (entry.record.has_value() == entry.skipped.has_value())
-    throw std::logic_error("save_scratch: a record or a skipped note, not both");
-  const std::vector<unsigned char> header = header_of(entry);
+    throw std::logic_error("scratch_bytes: a record or a skipped note, not both");
+  return entry_bytes(entry);
+}
+
+void save_scratch(const fs::path& path, const std::vector<std::vector<unsigned char>>& entries) {
+  Out header;
+  header.u64(entries.size());
+  for (const auto& e : entries) {
+    header.u64(e.size());
+    header.bytes.insert(header.bytes.end(), e.begin(), e.end());
+  }
+  Out file;
+  file.bytes.assign(kMagic, kMagic + sizeof kMagic);
+  file.u64(header.bytes.size());
+  file.bytes.insert(file.bytes.end(), header.bytes.begin(), header.bytes.end());
+  file.raw(crc(header.bytes.data(), header.bytes.size()));
   const fs::path temp = path.string() + ".partial";
   try {
     File f(temp, O_WRONLY | O_CREAT | O_TRUNC);
-    Out head;
-    head.bytes.assign(kMagic, kMagic + sizeof kMagic);
-    head.u64(header.size());
-    head.bytes.insert(head.bytes.end(), header.begin(), header.end());
-    head.raw(crc(header.data(), header.size()));
-    f.write(head.bytes.data(), head.bytes.size());
-    if (entry.record)
-      for (const StagedObject& obj : entry.record->objects)
-        for (const auto& c : obj.data.chunks) f.write(c.data(), c.size());
+    f.write(file.bytes.data(), file.bytes.size());
     f.close();
   } catch (...) {
     std::error_code ec;
@@ -310,68 +343,96 @@ void save_scratch(const fs::path& path, const ScratchEntry& entry) {
   }
 }
 
-ScratchEntry load_scratch(const fs::path& path) {
+std::string data_file_name(std::uint64_t generation) { return fmt::format("bundle-{}.h5", generation); }
+
+namespace {
+
+ScratchEntry parse_entry(In& in) {
+  ScratchEntry e;
+  if (in.u8() == 1) {
+    SkippedRecord k;
+    k.record_id = in.str();
+    k.record_index = in.u64();
+    k.reason = in.str();
+    e.skipped = std::move(k);
+    return e;
+  }
+  StagedRecord r;
+  e.generation = in.u64();
+  r.row = get_row(in);
+  r.attributes = get_attributes(in);
+  r.objects.resize(in.count());
+  for (StagedObject& obj : r.objects) {
+    obj.group = in.u8();
+    obj.path = in.str();
+    obj.attributes = get_attributes(in);
+    obj.members.resize(in.count());
+    for (TableMember& m : obj.members) {
+      m.name = in.str();
+      const unsigned kind = in.u8();
+      if (kind > static_cast<unsigned>(ColumnKind::str)) throw std::runtime_error("bad column kind");
+      m.kind = static_cast<ColumnKind>(kind);
+      m.offset = in.u64();
+      m.bytes = in.u64();
+    }
+    get_array(in, obj.data, e);
+  }
+  e.record = std::move(r);
+  return e;
+}
+
+RuntimeFailure damaged(const fs::path& path, const std::string& why) {
+  return RuntimeFailure(fmt::format("{}: damaged scratch file ({}); pass --force to start over", path.string(), why));
+}
+
+}  // namespace
+
+std::vector<ScratchEntry> load_scratch(const fs::path& path) {
   File f(path, O_RDONLY);
-  const auto damaged = [&](const std::string& why) {
-    return RuntimeFailure(fmt::format("{}: damaged scratch file ({}); pass --force to start over", path.string(), why));
-  };
   unsigned char start[sizeof kMagic + 8];
-  if (!f.read(start, sizeof start) || std::memcmp(start, kMagic, sizeof kMagic) != 0) throw damaged("no header");
+  if (!f.read(start, sizeof start) || std::memcmp(start, kMagic, sizeof kMagic) != 0) throw damaged(path, "no header");
   std::uint64_t header_bytes = 0;
   std::memcpy(&header_bytes, start + sizeof kMagic, 8);
-  if (header_bytes > (std::uint64_t(1) << 30)) throw damaged("implausible header size");
+  if (header_bytes > (std::uint64_t(1) << 30)) throw damaged(path, "implausible header size");
   std::vector<unsigned char> header(header_bytes + 4);
-  if (!f.read(header.data(), header.size())) throw damaged("truncated header");
+  if (!f.read(header.data(), header.size())) throw damaged(path, "truncated header");
   std::uint32_t stored_crc = 0;
   std::memcpy(&stored_crc, header.data() + header_bytes, 4);
-  if (crc(header.data(), header_bytes) != stored_crc) throw damaged("header checksum");
+  if (crc(header.data(), header_bytes) != stored_crc) throw damaged(path, "header checksum");
+  unsigned char extra = 0;
+  if (f.read(&extra, 1)) throw damaged(path, "trailing bytes");
 
-  ScratchEntry e;
-  std::vector<std::uint32_t> checks;
+  std::vector<ScratchEntry> entries;
   try {
     In in(header.data(), header_bytes);
-    if (in.u8() == 1) {
-      SkippedRecord k;
-      k.record_id = in.str();
-      k.record_index = in.u64();
-      k.reason = in.str();
-      e.skipped = std::move(k);
-    } else {
-      StagedRecord r;
-      r.row = get_row(in);
-      r.attributes = get_attributes(in);
-      r.objects.resize(in.count());
-      for (StagedObject& obj : r.objects) {
-        obj.group = in.u8();
-        obj.path = in.str();
-        obj.attributes = get_attributes(in);
-        obj.members.resize(in.count());
-        for (TableMember& m : obj.members) {
-          m.name = in.str();
-          const unsigned kind = in.u8();
-          if (kind > static_cast<unsigned>(ColumnKind::str)) throw std::runtime_error("bad column kind");
-          m.kind = static_cast<ColumnKind>(kind);
-          m.offset = in.u64();
-          m.bytes = in.u64();
-        }
-        get_array(in, obj.data, checks);
-      }
-      e.record = std::move(r);
+    entries.resize(in.count());
+    for (ScratchEntry& e : entries) {
+      const std::uint64_t size = in.u64();
+      In one(in.take(size), size);
+      e = parse_entry(one);
+      if (!one.done()) throw std::runtime_error("trailing entry bytes");
     }
     if (!in.done()) throw std::runtime_error("trailing header bytes");
   } catch (const std::runtime_error& err) {
-    throw damaged(err.what());
+    throw damaged(path, err.what());
   }
+  return entries;
+}
+
+void load_chunks(ScratchEntry& e, const fs::path& data_dir, const fs::path& path) {
+  if (!e.record) return;
+  const fs::path data_path = data_dir / data_file_name(e.generation);
+  if (!fs::exists(data_path)) throw damaged(path, data_path.filename().string() + " is missing");
+  File data(data_path, O_RDONLY);
   std::size_t k = 0;
-  if (e.record)
-    for (StagedObject& obj : e.record->objects)
-      for (auto& c : obj.data.chunks) {
-        if (!f.read(c.data(), c.size())) throw damaged("truncated data");
-        if (!chunk_intact(c, obj.data.filters.fletcher32, checks[k++])) throw damaged("chunk checksum");
-      }
-  unsigned char extra = 0;
-  if (f.read(&extra, 1)) throw damaged("trailing bytes");
-  return e;
+  for (StagedObject& obj : e.record->objects)
+    for (auto& c : obj.data.chunks) {
+      c.resize(e.chunk_bytes[k]);
+      const auto where = [&] { return fmt::format("chunk {} of {} in {}", k, obj.path, data_path.filename().string()); };
+      if (!data.read_at(c.data(), c.size(), e.chunk_offsets[k])) throw damaged(path, where() + ": cut short");
+      if (!chunk_intact(c, obj.data.filters.fletcher32, e.chunk_checks[k])) throw damaged(path, where() + ": checksum");
+      ++k;
+    }
 }
 
 }  // namespace stethogen::bundle

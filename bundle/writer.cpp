@@ -56,6 +56,8 @@ struct BundleWriter::Impl {
   std::optional<IndexSpill> index;
   std::vector<SkippedRecord> skipped;
   bool open = false;
+  // Durable files: bytes handed to the kernel for writing to disk so far (start_writeback).
+  std::uint64_t writeback_bytes = 0;
 
   std::string where(const std::string& object) const { return fmt::format("{}: {}", temp.string(), object); }
 
@@ -89,7 +91,7 @@ struct BundleWriter::Impl {
     return names;
   }
 
-  void write(const StagedRecord& r) {
+  void write(const StagedRecord& r, std::vector<std::uint64_t>* chunk_offsets) {
     h5::Id g = h5::make_group(records, r.row.record_id, h5::name_heap_bytes(member_names(r, "")));
     write_attributes(g, r.attributes);
     std::string open_path;
@@ -109,7 +111,7 @@ struct BundleWriter::Impl {
         continue;
       }
       h5::Id type = o.members.empty() ? h5::Id() : h5::compound_type(o.members, o.data.element_bytes);
-      h5::Id ds = h5::write_encoded(parent, leaf, o.data, type.valid() ? hid_t(type) : hid_t(-1));
+      h5::Id ds = h5::write_encoded(parent, leaf, o.data, type.valid() ? hid_t(type) : hid_t(-1), chunk_offsets);
       write_attributes(ds, o.attributes);
     }
   }
@@ -157,11 +159,27 @@ struct BundleWriter::Impl {
     h5::set_attr(ds, "units", units);
   }
 
+  // A durable file is flushed to disk by finish(); its data is sent on its way as it grows, so
+  // that flush waits only for the last few MiB instead of the whole file (about 85 ms for a
+  // 170 MB bundle, serial at the end of a run). sync_file_range only starts the writeback (the
+  // same kernel work fsync would do later); it is no durability promise in itself.
+  static constexpr std::uint64_t kWritebackBytes = 8u << 20;
+  void start_writeback() {
+    hsize_t size = 0;
+    if (!options.durable || H5Fget_filesize(file, &size) < 0 || size < writeback_bytes + kWritebackBytes) return;
+    void* handle = nullptr;
+    if (H5Fget_vfd_handle(file, H5P_DEFAULT, &handle) < 0 || !handle) return;
+    const int fd = *static_cast<int*>(handle);  // the default (sec2) driver's handle: its descriptor
+    ::sync_file_range(fd, static_cast<off_t>(writeback_bytes), static_cast<off_t>(size - writeback_bytes),
+                      SYNC_FILE_RANGE_WRITE);  // best effort: finish() flushes and checks
+    writeback_bytes = size;
+  }
+
   void close_and_remove() noexcept {
     records.reset();
     file.reset();
     std::error_code ec;
-    fs::remove(temp, ec);
+    if (!options.keep_temp) fs::remove(temp, ec);
     open = false;
   }
 };
@@ -226,7 +244,7 @@ void BundleWriter::write_record(const Record& record, const EncodedRecord& encod
   write_staged(stage_record(record, encoded, parts, staging_settings(impl_->attributes), override_id));
 }
 
-void BundleWriter::write_staged(const StagedRecord& record) {
+void BundleWriter::write_staged(const StagedRecord& record, std::vector<std::uint64_t>* chunk_offsets) {
   std::lock_guard guard(h5::lock());
   Impl& m = *impl_;
   const std::string& id = record.row.record_id;
@@ -235,11 +253,12 @@ void BundleWriter::write_staged(const StagedRecord& record) {
     throw InputError(fmt::format("record id '{}': must be non-empty and contain no '/'", id));
   if (m.has_record(id)) throw InputError(fmt::format("{}: duplicate record id '{}'", m.target.string(), id));
   try {
-    m.write(record);
+    m.write(record, chunk_offsets);
   } catch (const RuntimeFailure& e) {
     throw RuntimeFailure(fmt::format("{}: record {}: {}", m.temp.string(), id, e.what()));
   }
   m.index->append(record.row);
+  m.start_writeback();
 }
 
 void BundleWriter::copy_record(const BundleReader& source, const std::string& record_id) {

@@ -6,6 +6,7 @@
 #include <filesystem>
 #include <memory>
 #include <string>
+#include <vector>
 
 #include "bundle/index_row.hpp"
 #include "core/record.hpp"
@@ -25,6 +26,9 @@ struct WriterOptions {
   // Flush the file to disk before the rename (off for a run's scratch files, which only need
   // to survive the process, not a power cut).
   bool durable = true;
+  // Keep the temporary file (closed) when abandoned or when finish() fails: a run's scratch files
+  // point at the chunks in it (bundle/scratch_file.hpp), from which --resume rebuilds the records.
+  bool keep_temp = false;
 };
 
 class BundleWriter {
@@ -48,7 +52,9 @@ class BundleWriter {
                     const std::string& record_id_override = {});
 
   // Appends a record staged for this bundle (stage_record with staging_settings of its attributes).
-  void write_staged(const StagedRecord& record);
+  // chunk_offsets (if given) gets the byte offset in the file of each of the record's chunks, in
+  // the order of its objects and their chunks; the chunks are in the file when this returns.
+  void write_staged(const StagedRecord& record, std::vector<std::uint64_t>* chunk_offsets = nullptr);
 
   // Copies /records/<record_id> of another bundle unchanged (raw compressed chunks) and its
   // /index row: merging shards this way gives the same bytes as writing the records directly.
@@ -64,7 +70,8 @@ class BundleWriter {
   // Writes /index (rows in the order written) and /skipped, closes the file and renames it to
   // the target. Throws RuntimeFailure on a write error, after removing the temporary file.
   void finish();
-  // Closes and deletes the temporary file; the target is untouched. Never throws.
+  // Closes and deletes the temporary file (keeps it under keep_temp); the target is untouched.
+  // Never throws.
   void abandon() noexcept;
 
   std::size_t records_written() const;

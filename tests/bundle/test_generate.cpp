@@ -5,12 +5,14 @@
 #include <signal.h>
 #include <unistd.h>
 
+#include <algorithm>
 #include <chrono>
 #include <filesystem>
 #include <fstream>
 #include <regex>
 #include <thread>
 
+#include "bundle/scratch_file.hpp"
 #include "run_helpers.hpp"
 #include "temp_dir.hpp"
 
@@ -19,13 +21,19 @@ namespace fs = std::filesystem;
 
 namespace {
 
-std::size_t count_scratch(const fs::path& workdir) {
-  std::size_t n = 0;
+// The run's scratch files (each holds the records of a quarter second, at most 16), in record order.
+std::vector<fs::path> scratch_files(const fs::path& workdir) {
+  std::vector<fs::path> found;
   std::error_code ec;
   for (const auto& e : fs::directory_iterator(workdir, ec))
-    if (std::regex_match(e.path().filename().string(), std::regex(R"(rec-\d+\.stg)"))) ++n;
-  return n;
+    if (std::regex_match(e.path().filename().string(), std::regex(R"(rec-\d+\.stg)"))) found.push_back(e.path());
+  std::sort(found.begin(), found.end());
+  return found;
 }
+std::size_t count_scratch(const fs::path& workdir) { return scratch_files(workdir).size(); }
+
+// The first record of a scratch file, from its name rec-<first>.stg.
+std::uint64_t first_record(const fs::path& scratch) { return std::stoull(scratch.stem().string().substr(4)); }
 
 // A longer variant of the small recipe, so a run can be interrupted part-way.
 fs::path longer_recipe(const fs::path& dir, int count) {
@@ -131,13 +139,14 @@ TEST_CASE("an existing output is left untouched without --force", "[generate][sa
 namespace {
 
 // `generate --threads 2` as a child process, killed without warning by interrupt_generate.
-pid_t start_generate(const fs::path& recipe, const fs::path& out) {
+// extra: one more argument (e.g. "--resume"), or none.
+pid_t start_generate(const fs::path& recipe, const fs::path& out, const char* extra = nullptr) {
   pid_t pid = fork();
   REQUIRE(pid >= 0);
   if (pid == 0) {
     setenv("SOURCE_DATE_EPOCH", "1700000000", 1);
     execl(binary().c_str(), binary().c_str(), "generate", recipe.c_str(), "-o", out.c_str(), "--quiet", "--threads",
-          "2", static_cast<char*>(nullptr));
+          "2", extra, static_cast<char*>(nullptr));
     _exit(127);
   }
   return pid;
@@ -160,15 +169,15 @@ void interrupt_generate(pid_t pid, const fs::path& out, Ready ready) {
 
 TEST_CASE("kill -9 leaves no final file and --resume completes an identical bundle", "[generate][safety]") {
   TempDir dir;
-  const fs::path recipe = longer_recipe(dir.path(), 40);
+  const fs::path recipe = longer_recipe(dir.path(), 80);
   const fs::path reference = dir.path() / "reference.h5";
   REQUIRE(run(generate_cmd(recipe, reference, "--threads 2")).exit_code == 0);
 
   const fs::path out = dir.path() / "run.h5";
   const fs::path workdir = out.string() + ".partial";
   const pid_t pid = start_generate(recipe, out);
-  // A few records saved, then killed without warning.
-  interrupt_generate(pid, out, [&] { return count_scratch(workdir) >= 3; });
+  // Some records saved, then killed without warning.
+  interrupt_generate(pid, out, [&] { return count_scratch(workdir) >= 1; });
   REQUIRE_FALSE(fs::exists(out));
   REQUIRE(fs::is_directory(workdir));
 
@@ -184,24 +193,19 @@ TEST_CASE("kill -9 leaves no final file and --resume completes an identical bund
 
 TEST_CASE("a damaged scratch file is made again on resume and the bundle is still identical", "[generate][safety]") {
   TempDir dir;
-  const fs::path recipe = longer_recipe(dir.path(), 40);
+  const fs::path recipe = longer_recipe(dir.path(), 80);
   const fs::path reference = dir.path() / "reference.h5";
   REQUIRE(run(generate_cmd(recipe, reference, "--threads 1")).exit_code == 0);
 
   const fs::path out = dir.path() / "run.h5";
   const fs::path workdir = out.string() + ".partial";
   const pid_t pid = start_generate(recipe, out);
-  // Records 0-3 saved (the workers may finish them out of order).
-  const auto saved = [&] {
-    for (const char* name : {"rec-000000000000.stg", "rec-000000000001.stg", "rec-000000000002.stg", "rec-000000000003.stg"})
-      if (!fs::exists(workdir / name)) return false;
-    return true;
-  };
-  interrupt_generate(pid, out, saved);
-  REQUIRE(saved());
-  // A power cut can leave a renamed file with lost contents: one flipped byte in record 1's data.
-  const fs::path damaged = workdir / "rec-000000000001.stg";
-  REQUIRE(fs::exists(damaged));
+  interrupt_generate(pid, out, [&] { return count_scratch(workdir) >= 2; });
+  // A power cut can leave a renamed file with lost contents: one flipped byte in the second
+  // scratch file.
+  const fs::path damaged = scratch_files(workdir).at(1);
+  const std::uint64_t first = first_record(damaged);
+  REQUIRE(first >= 1);
   std::string bytes = read_bytes(damaged);
   bytes[bytes.size() / 2] = static_cast<char>(bytes[bytes.size() / 2] ^ 0x04);
   std::ofstream(damaged, std::ios::binary | std::ios::trunc) << bytes;
@@ -210,13 +214,73 @@ TEST_CASE("a damaged scratch file is made again on resume and the bundle is stil
   INFO(resumed.output);
   REQUIRE(resumed.exit_code == 0);
   REQUIRE(resumed.output.find("damaged scratch file") != std::string::npos);
-  REQUIRE(resumed.output.find("resuming at record 1 ") != std::string::npos);
+  REQUIRE(resumed.output.find("resuming at record " + std::to_string(first) + " ") != std::string::npos);
+  REQUIRE(read_bytes(out) == read_bytes(reference));
+}
+
+TEST_CASE("a damaged chunk in the partial bundle is made again on resume and the bundle is still identical",
+          "[generate][safety]") {
+  TempDir dir;
+  const fs::path recipe = longer_recipe(dir.path(), 80);
+  const fs::path reference = dir.path() / "reference.h5";
+  REQUIRE(run(generate_cmd(recipe, reference, "--threads 1")).exit_code == 0);
+
+  const fs::path out = dir.path() / "run.h5";
+  const fs::path workdir = out.string() + ".partial";
+  const pid_t pid = start_generate(recipe, out);
+  interrupt_generate(pid, out, [&] { return count_scratch(workdir) >= 2; });
+  // The chunks are only in the partial bundle (the run's data file): one flipped bit in a chunk of
+  // the first record of the second scratch file, as a power cut could leave it.
+  const fs::path scratch = scratch_files(workdir).at(1);
+  const std::uint64_t first = first_record(scratch);
+  REQUIRE(first >= 1);
+  const stethogen::bundle::ScratchEntry entry = stethogen::bundle::load_scratch(scratch).at(0);
+  REQUIRE(entry.record.has_value());
+  REQUIRE(entry.generation == 1);
+  const fs::path data = workdir / stethogen::bundle::data_file_name(1);
+  std::string bytes = read_bytes(data);
+  const std::size_t at = entry.chunk_offsets.at(entry.chunk_offsets.size() / 2) + 3;
+  bytes[at] = static_cast<char>(bytes[at] ^ 0x20);
+  std::ofstream(data, std::ios::binary | std::ios::trunc) << bytes;
+
+  RunResult resumed = run(generate_cmd(recipe, out, "--resume --threads 2"));
+  INFO(resumed.output);
+  REQUIRE(resumed.exit_code == 0);
+  REQUIRE(resumed.output.find("damaged scratch file") != std::string::npos);
+  REQUIRE(resumed.output.find("resuming at record " + std::to_string(first) + " ") != std::string::npos);
+  REQUIRE(read_bytes(out) == read_bytes(reference));
+}
+
+TEST_CASE("kill -9 again while --resume rebuilds the bundle, then --resume: still identical", "[generate][safety]") {
+  TempDir dir;
+  const fs::path recipe = longer_recipe(dir.path(), 80);
+  const fs::path reference = dir.path() / "reference.h5";
+  REQUIRE(run(generate_cmd(recipe, reference, "--threads 2")).exit_code == 0);
+
+  const fs::path out = dir.path() / "run.h5";
+  const fs::path workdir = out.string() + ".partial";
+  interrupt_generate(start_generate(recipe, out), out, [&] { return count_scratch(workdir) >= 2; });
+  const std::uint64_t saved = first_record(scratch_files(workdir).at(1));
+  // The resumed run rebuilds the saved records into a second data file: killed once that exists,
+  // with records in both (or all in the second).
+  interrupt_generate(start_generate(recipe, out, "--resume"), out,
+                     [&] { return fs::exists(workdir / stethogen::bundle::data_file_name(2)); });
+  REQUIRE(fs::exists(workdir / stethogen::bundle::data_file_name(2)));
+  RunResult resumed = run(generate_cmd(recipe, out, "--resume --threads 1"));
+  INFO(resumed.output);
+  REQUIRE(resumed.exit_code == 0);
+  // Nothing saved was lost on the way: at least the first run's first scratch file was taken as it was.
+  REQUIRE(resumed.output.find("damaged") == std::string::npos);
+  std::smatch m;
+  REQUIRE(std::regex_search(resumed.output, m, std::regex(R"(resuming at record (\d+) )")));
+  REQUIRE(std::stoull(m[1]) >= saved);
+  REQUIRE_FALSE(fs::exists(workdir));
   REQUIRE(read_bytes(out) == read_bytes(reference));
 }
 
 TEST_CASE("SIGTERM stops cleanly and says how to resume", "[generate][safety]") {
   TempDir dir;
-  const fs::path recipe = longer_recipe(dir.path(), 40);
+  const fs::path recipe = longer_recipe(dir.path(), 80);
   const fs::path out = dir.path() / "run.h5";
   const fs::path log = dir.path() / "log.txt";
   RunResult r = run(generate_cmd(recipe, out, "--threads 2") + " > " + quote(log) + " 2>&1 & pid=$!; " +
