@@ -3,6 +3,7 @@
 
 #include <cmath>
 #include <complex>
+#include <cstring>
 #include <numbers>
 #include <string>
 #include <vector>
@@ -381,4 +382,20 @@ TEST_CASE("single-precision filtering gives each signal the values it has alone"
       for (std::size_t k = 0; k < st_alone[s].size(); ++k) REQUIRE(st_together[s][k] == st_alone[s][k]);
     }
   }
+}
+
+TEST_CASE("output stage at unit gain in float32: samples within full scale unchanged, beyond it clipped", "[filters]") {
+  SiteArray<float> x(2, 5);
+  const float in[2][5] = {{0.1f, -0.99999994f, 0.999999f, 1e-30f, -0.0f}, {0.5f, 1.25f, -0.25f, -1.5f, 0.75f}};
+  for (std::size_t s = 0; s < 2; ++s) std::copy(in[s], in[s] + 5, x.row(s));
+  auto clipped = apply_output_stage(x, 0.0, SampleFormat::float32, 1000);
+  // Site 0 stays within [-1, 1]: float32 at 0 dB keeps every sample bit for bit.
+  for (std::size_t i = 0; i < 5; ++i) REQUIRE(std::memcmp(&x.row(0)[i], &in[0][i], sizeof(float)) == 0);
+  // Site 1 clips at full scale 1.0 (float32 has no quantisation step) and reports two runs.
+  const float expected[5] = {0.5f, 1.0f, -0.25f, -1.0f, 0.75f};
+  for (std::size_t i = 0; i < 5; ++i) REQUIRE(x.at(1, i) == expected[i]);
+  REQUIRE(clipped.size() == 2);
+  REQUIRE(clipped[0].site == 1);
+  REQUIRE(clipped[0].level_db == Approx(20.0 * std::log10(1.25)));
+  REQUIRE(clipped[1].level_db == Approx(20.0 * std::log10(1.5)));
 }
