@@ -108,12 +108,6 @@ void decaying_rotations(std::complex<double> carrier, double step, const double*
 // Two doubles in one vector register (GCC vector extension: packed SSE2 on x86-64).
 using Pair = double __attribute__((vector_size(16)));
 
-// Plain complex product: std::complex's operator* adds a NaN-recovery branch (C99 Annex G)
-// that the finite values here never need.
-std::complex<double> multiply(std::complex<double> a, std::complex<double> b) {
-  return {a.real() * b.real() - a.imag() * b.imag(), a.real() * b.imag() + a.imag() * b.real()};
-}
-
 }  // namespace
 
 void SoundComponent::render(double t_first_s, double rate_hz, std::size_t n, double weight,
@@ -152,12 +146,6 @@ void SoundComponent::render(double t_first_s, double rate_hz, std::size_t n, dou
   }
 
   double step_re[kTogether][kBlock], step_im[kTogether][kBlock], chirp_run[kTogether][kBlock];
-  // One lone block of a round, advanced on its own (scalars, kept in registers).
-  struct Single {
-    std::size_t b = 0, len = 0;
-    double tail = 0;
-    std::complex<double> phasor;
-  };
   while (i < n) {
     // With fewer than kTogether full blocks left, the last, partial block runs beside them
     // instead of after them (the same anchors, so the same values): its recurrence overlaps
@@ -182,51 +170,55 @@ void SoundComponent::render(double t_first_s, double rate_hz, std::size_t n, dou
       }
     for (std::size_t b = 0; b < blocks; ++b)
       decaying_rotations(carrier, chirp_step, chirp_run[b], b < full ? kBlock : part, step_re[b], step_im[b]);
-    // Full blocks 2p and 2p + 1 in the two lanes of a vector (pair p); a full block left over
-    // and the partial block on their own: the same operations per block as a scalar loop over
-    // it, so the same values.
-    const std::size_t pairs = full / 2;
-    Pair pre[kTogether / 2], pim[kTogether / 2], ptail[kTogether / 2], pindex[kTogether / 2];
-    for (std::size_t p = 0; p < pairs; ++p) {
-      pre[p] = Pair{phasor[2 * p].real(), phasor[2 * p + 1].real()};
-      pim[p] = Pair{phasor[2 * p].imag(), phasor[2 * p + 1].imag()};
-      ptail[p] = Pair{tail[2 * p], tail[2 * p + 1]};
-      pindex[p] = Pair{static_cast<double>(i + 2 * p * kBlock), static_cast<double>(i + (2 * p + 1) * kBlock)};
+    // Blocks 2p and 2p + 1 in the two lanes of vector p; a block left over fills both lanes of
+    // its vector (the same values twice, stored to the same place). Every lane performs the
+    // operations of a scalar loop over its block, so the values are those of one.
+    constexpr std::size_t kVectors = (kTogether + 1) / 2;
+    const std::size_t vectors = (blocks + 1) / 2;
+    std::size_t lane_a[kVectors], lane_b[kVectors];
+    Pair pre[kVectors], pim[kVectors], ptail[kVectors], pindex[kVectors];
+    for (std::size_t p = 0; p < vectors; ++p) {
+      const std::size_t a = 2 * p, b = 2 * p + 1 < blocks ? 2 * p + 1 : 2 * p;
+      lane_a[p] = a, lane_b[p] = b;
+      pre[p] = Pair{phasor[a].real(), phasor[b].real()};
+      pim[p] = Pair{phasor[a].imag(), phasor[b].imag()};
+      ptail[p] = Pair{tail[a], tail[b]};
+      pindex[p] = Pair{static_cast<double>(i + a * kBlock), static_cast<double>(i + b * kBlock)};
     }
-    Single one, two;
-    std::size_t singles = 0;
-    auto add_single = [&](std::size_t b, std::size_t block_len) {
-      (singles == 0 ? one : two) = Single{b, block_len, tail[b], phasor[b]};
-      ++singles;
-    };
-    if (full % 2 == 1) add_single(full - 1, kBlock);
-    if (part > 0) add_single(full, part);
-    auto advance = [&](Single& q, std::size_t j) {
-      const std::size_t k = i + q.b * kBlock + j;
-      const double r = time_at(k) * inv_rise;
-      out[k] = (scale * r * r * q.tail) * q.phasor;
-      q.phasor = multiply(q.phasor, {step_re[q.b][j], step_im[q.b][j]});
-      q.tail *= decay;
-    };
-    for (std::size_t j = 0; j < len; ++j) {
+    // Samples from .. to of the first active vectors.
+    auto run = [&](std::size_t from, std::size_t to, std::size_t active) {
+      for (std::size_t j = from; j < to; ++j) {
 #pragma GCC unroll 2
-      for (std::size_t p = 0; p < pairs; ++p) {
-        const Pair r = (t_first_s + pindex[p] * h - start_s) * inv_rise;  // time_at, per lane
-        const Pair a = scale * r * r * ptail[p];
-        const Pair re = a * pre[p], im = a * pim[p];
-        const std::size_t k = i + 2 * p * kBlock + j;
-        out[k] = {re[0], im[0]};
-        out[k + kBlock] = {re[1], im[1]};
-        const Pair step_r = {step_re[2 * p][j], step_re[2 * p + 1][j]};
-        const Pair step_i = {step_im[2 * p][j], step_im[2 * p + 1][j]};
-        const Pair next_re = pre[p] * step_r - pim[p] * step_i;  // multiply(), per lane
-        pim[p] = pre[p] * step_i + pim[p] * step_r;
-        pre[p] = next_re;
-        ptail[p] *= decay;
-        pindex[p] += 1.0;
+        for (std::size_t p = 0; p < active; ++p) {
+          const Pair r = (t_first_s + pindex[p] * h - start_s) * inv_rise;  // time_at, per lane
+          const Pair a = scale * r * r * ptail[p];
+          const Pair re = a * pre[p], im = a * pim[p];
+          out[i + lane_a[p] * kBlock + j] = {re[0], im[0]};
+          out[i + lane_b[p] * kBlock + j] = {re[1], im[1]};
+          const Pair step_r = {step_re[lane_a[p]][j], step_re[lane_b[p]][j]};
+          const Pair step_i = {step_im[lane_a[p]][j], step_im[lane_b[p]][j]};
+          const Pair next_re = pre[p] * step_r - pim[p] * step_i;  // the complex product, per lane
+          pim[p] = pre[p] * step_i + pim[p] * step_r;
+          pre[p] = next_re;
+          ptail[p] *= decay;
+          pindex[p] += 1.0;
+        }
       }
-      if (singles > 0 && j < one.len) advance(one, j);
-      if (singles > 1 && j < two.len) advance(two, j);
+    };
+    if (full == 0 || part == 0) {
+      run(0, len, vectors);
+    } else {
+      run(0, part, vectors);
+      // The partial block (block full) ends: as lane b its vector goes on with lane a in both
+      // lanes; alone in the last vector, that vector stops.
+      const std::size_t p = full / 2;
+      if (full % 2 == 1) {
+        lane_b[p] = lane_a[p];
+        pre[p][1] = pre[p][0], pim[p][1] = pim[p][0], ptail[p][1] = ptail[p][0], pindex[p][1] = pindex[p][0];
+        run(part, kBlock, vectors);
+      } else {
+        run(part, kBlock, vectors - 1);
+      }
     }
     i += full * kBlock + part;
   }

@@ -132,8 +132,8 @@ Form form_of(const Biquad& s) {
 template <typename V>
 V to_kept(Form form, V z1) { return form == Form::high_pass ? -z1 : z1; }
 
-template <typename V>
-V section_step(Form form, double b0, double b1, double b2, double a1, double a2, V x, V& z1, V& z2) {
+template <typename V, typename S>
+V section_step(Form form, S b0, S b1, S b2, S a1, S a2, V x, V& z1, V& z2) {
   switch (form) {
     case Form::low_pass: {
       const V t = b0 * x, y = t + z1;

@@ -56,4 +56,24 @@ inline constexpr std::size_t kLanes = 2;
 void filter_continue_together(const FilterCascade& cascade, std::complex<double>* const* data,
                               const std::size_t* n, std::complex<double>* const* state, std::size_t count);
 
+// The same in single precision (inputs, states and outputs stay double; coefficients, states and
+// arithmetic inside the filter are float), two complex signals per 4-float vector and up to four
+// signals in lockstep: half the vector operations. Each signal's values are the same whichever
+// signals run beside it. Use only where single_precision_suffices.
+void filter_continue_together_single(const FilterCascade& cascade, std::complex<double>* const* data,
+                                     const std::size_t* n, std::complex<double>* const* state, std::size_t count);
+
+// The gate of the single-precision path, from the poles: for every pole p of the double
+// coefficients, the shift of the nearest pole of the float-rounded coefficients plus float's
+// rounding per step (2^-24), both amplified by the pole's gain 1 / (1 - |p|), stay below
+// kSinglePrecisionTolerance. Near a pole the relative response error is about that bound, and the
+// rounding noise of the recursion is about that fraction of the signal. True for the 20 Hz
+// high-pass at 4 kHz (1 - |p| = 0.031), false for the accelerometer's 10 Hz second-order
+// high-pass at 4 kHz and above (poles 0.011 from the unit circle and 0.022 apart).
+// At most kMaxSingleSections sections (the bell's five at 4 kHz).
+inline constexpr double kSinglePrecisionTolerance = 1e-4;
+inline constexpr std::size_t kMaxSingleSections = 5;
+double single_precision_error_bound(const FilterCascade& cascade);
+bool single_precision_suffices(const FilterCascade& cascade);
+
 }  // namespace stethogen::gen

@@ -118,15 +118,22 @@ Rendering render_sites(const std::vector<SoundComponent>& components, const std:
   out.group_timing.assign(groups.size(), std::vector<SoundTiming>(n_sites));
 
   // The sites of a group are worked in lockstep where they are independent, so that their
-  // filters run together (filter_continue_together); every site's values are computed exactly
-  // as if it were alone.
+  // filters run together (filter_continue_together[_single]); every site's values are computed
+  // exactly as if it were alone.
   std::vector<SiteSegment> seg(n_sites);
   std::vector<Complex*> data(n_sites), state(n_sites);
   std::vector<std::size_t> count(n_sites);
   // One cascade for every site (plan_transmission); otherwise each site is filtered alone.
   bool shared_filter = true;
   for (const SitePath& p : plan.sites) shared_filter = shared_filter && same_cascade(p.filter, plan.sites[0].filter);
+  // Single precision where the filter's poles allow it (biquad.hpp): far inside the output
+  // tolerance, half the vector work.
+  const bool single = shared_filter && single_precision_suffices(plan.sites[0].filter);
   auto filter_sites = [&] {
+    if (single) {
+      filter_continue_together_single(plan.sites[0].filter, data.data(), count.data(), state.data(), n_sites);
+      return;
+    }
     if (shared_filter) {
       filter_continue_together(plan.sites[0].filter, data.data(), count.data(), state.data(), n_sites);
       return;

@@ -104,8 +104,12 @@ std::vector<Artifact> apply_output_stage(SiteArray<float>& signal, double gain_d
       lowest = std::min(lowest, x[i]);
       highest = std::max(highest, x[i]);
     }
-    if (lowest * gain < -1.0 || highest * gain > upper)
-      find_clipping(x, n, gain, upper, static_cast<std::int32_t>(s), sample_rate_hz, clipped);
+    const bool clips = lowest * gain < -1.0 || highest * gain > upper;
+    if (clips) find_clipping(x, n, gain, upper, static_cast<std::int32_t>(s), sample_rate_hz, clipped);
+    // Unit gain (0 dB, the default), float32 and nothing beyond full scale: the pass below would
+    // give every sample back unchanged (x * 1.0 and the float -> double -> float round trip are
+    // exact, the clamp is idle), so it is skipped.
+    if (step == 0 && gain == 1.0 && !clips) continue;
     if (step > 0) {
       for (std::size_t i = 0; i < n; ++i) x[i] = static_cast<float>(std::round(std::clamp(x[i] * gain, -1.0, upper) / step) * step);
     } else {

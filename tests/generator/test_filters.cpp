@@ -3,6 +3,7 @@
 
 #include <cmath>
 #include <complex>
+#include <cstring>
 #include <numbers>
 #include <string>
 #include <vector>
@@ -235,4 +236,166 @@ TEST_CASE("first-order sections in their short forms give the general recurrence
   filter_continue(c, y.data(), y.size(), state.data());
   // The written-out loop adds z2 = 0 where the short forms skip it: the same values.
   for (std::size_t i = 0; i < x.size(); ++i) REQUIRE(y[i] == expected[i]);
+}
+
+namespace {
+
+// A decaying complex oscillation, the kind of signal the rendering filters.
+std::vector<std::complex<double>> transient(std::size_t n, double frequency_hz, double fs, double decay_per_sample) {
+  std::vector<std::complex<double>> x(n);
+  for (std::size_t i = 0; i < n; ++i)
+    x[i] = std::polar(std::exp(-decay_per_sample * static_cast<double>(i)), 2.0 * std::numbers::pi * frequency_hz * i / fs);
+  return x;
+}
+
+// The site cascade as plan_transmission builds it (chest wall, sensor).
+FilterCascade site_cascade(Sensor sensor, double mm, double fs) {
+  FilterCascade c = chest_wall_filter(mm, fs);
+  c.append(sensor_response(sensor, fs));
+  return c;
+}
+
+// The path render_sites takes for the cascade, on one complex signal from rest.
+std::vector<std::complex<double>> filter_as_rendered(const FilterCascade& c, std::vector<std::complex<double>> x,
+                                                     bool single) {
+  std::vector<std::complex<double>> state(2 * c.sections.size());
+  std::complex<double>* data[1] = {x.data()};
+  std::complex<double>* st[1] = {state.data()};
+  const std::size_t n[1] = {x.size()};
+  if (single) filter_continue_together_single(c, data, n, st, 1);
+  else filter_continue_together(c, data, n, st, 1);
+  return x;
+}
+
+// Relative RMS difference of the real and imaginary parts of got against scipy.signal.sosfilt of
+// the input's real and imaginary parts.
+double relative_rms_to_sosfilt(const FilterCascade& c, const std::vector<std::complex<double>>& x,
+                               const std::vector<std::complex<double>>& got) {
+  std::vector<double> re, im;
+  for (const auto& v : x) re.push_back(v.real()), im.push_back(v.imag());
+  const std::string sos = test::write_cascade("sosfilt_sos", c), fre = test::write_samples("sosfilt_re", re),
+                    fim = test::write_samples("sosfilt_im", im);
+  std::vector<double> ref = test::run_reference("sosfilt " + sos + " " + fre + " " + fim);
+  for (const std::string& p : {sos, fre, fim}) std::remove(p.c_str());
+  REQUIRE(ref.size() == 2 * x.size());
+  double err = 0, power = 0;
+  for (std::size_t i = 0; i < x.size(); ++i) {
+    const std::complex<double> r(ref[i], ref[x.size() + i]);
+    err += std::norm(got[i] - r);
+    power += std::norm(r);
+  }
+  return std::sqrt(err / power);
+}
+
+}  // namespace
+
+TEST_CASE("single-precision gate from the poles: acoustic and electronic sensors yes, accelerometer at 4 kHz no",
+          "[filters]") {
+  for (Sensor s : {Sensor::acoustic_bell, Sensor::acoustic_diaphragm, Sensor::electronic})
+    for (double fs : {1000.0, 4000.0, 8000.0}) {
+      INFO(name(s) << " at " << fs << " Hz");
+      REQUIRE(single_precision_suffices(site_cascade(s, 22, fs)));
+    }
+  // The accelerometer's 10 Hz second-order high-pass: at 4 kHz its poles lie 0.011 from the unit
+  // circle and 0.022 apart, so float's rounding of a1 ~ -1.98 moves them by ~3e-6.
+  for (double fs : {4000.0, 8000.0, 48000.0}) {
+    INFO("accelerometer at " << fs << " Hz");
+    REQUIRE_FALSE(single_precision_suffices(site_cascade(Sensor::accelerometer, 22, fs)));
+  }
+  // The 20 Hz first-order high-pass at 48 kHz, worked by hand: pole p = (1 - k) / (1 + k) with
+  // k = tan(pi 20 / 48000), 1 - p = 2.6e-3; rounding p to float moves it by at most half a float
+  // ulp below 1 (2^-25), so the bound lies between 2^-24 / (1 - p) and (2^-24 + 2^-25) / (1 - p).
+  FilterCascade high;
+  high.sections = {butter_highpass1(20, 48000)};
+  const double k = std::tan(std::numbers::pi * 20.0 / 48000.0), margin = 1.0 - (1.0 - k) / (1.0 + k);
+  REQUIRE(single_precision_error_bound(high) >= 0x1p-24 / margin * (1 - 1e-9));
+  REQUIRE(single_precision_error_bound(high) <= (0x1p-24 + 0x1p-25) / margin * (1 + 1e-9));
+}
+
+TEST_CASE("both rendering filter paths match scipy.signal.sosfilt", "[filters]") {
+  struct Case { Sensor sensor; double fs; };
+  for (Case k : {Case{Sensor::electronic, 4000}, Case{Sensor::acoustic_bell, 4000}, Case{Sensor::acoustic_diaphragm, 8000},
+                 Case{Sensor::accelerometer, 4000}, Case{Sensor::accelerometer, 48000}}) {
+    const FilterCascade c = site_cascade(k.sensor, 22, k.fs);
+    const bool single = single_precision_suffices(c);
+    const auto x = transient(3000, 90.0, k.fs, 2e-3 * 4000 / k.fs);
+    const double rel = relative_rms_to_sosfilt(c, x, filter_as_rendered(c, x, single));
+    INFO(name(k.sensor) << " at " << k.fs << " Hz, single precision " << single << ": relative RMS " << rel);
+    // scipy.signal.sosfilt in double: the single path within the gate's tolerance (biquad.hpp),
+    // the double path to rounding.
+    REQUIRE(rel <= (single ? kSinglePrecisionTolerance : 1e-12));
+  }
+  // The gate is needed: at 48 kHz the accelerometer in single precision is off by more than the
+  // tolerance (measured with the same reference).
+  const FilterCascade accel = site_cascade(Sensor::accelerometer, 22, 48000);
+  const auto x = transient(48000, 12.0, 48000, 1e-4);
+  REQUIRE(relative_rms_to_sosfilt(accel, x, filter_as_rendered(accel, x, true)) > kSinglePrecisionTolerance);
+}
+
+TEST_CASE("single-precision response matches scipy.signal.sosfreqz", "[filters]") {
+  const double fs = 4000;
+  const std::vector<double> freqs = {20.0, 40.0, 66.0, 100.0, 150.0, 300.0, 600.0, 1200.0};
+  std::string list;
+  for (double f : freqs) list += (list.empty() ? "" : ",") + std::to_string(f);
+  for (Sensor s : {Sensor::acoustic_bell, Sensor::electronic}) {
+    const FilterCascade c = site_cascade(s, 22, fs);
+    REQUIRE(single_precision_suffices(c));
+    const std::string path = test::write_cascade("single_freqz", c);
+    std::vector<double> ref = test::run_reference("freqz " + std::to_string(fs) + " " + list + " " + path);
+    std::remove(path.c_str());
+    REQUIRE(ref.size() == freqs.size());
+    std::vector<std::complex<double>> h(static_cast<std::size_t>(60.0 * c.slowest_time_constant_s(fs) * fs) + 64);
+    h[0] = 1.0;
+    h = filter_as_rendered(c, h, true);
+    for (std::size_t j = 0; j < freqs.size(); ++j) {
+      std::complex<double> acc{};
+      for (std::size_t i = 0; i < h.size(); ++i) acc += h[i] * std::polar(1.0, -2.0 * std::numbers::pi * freqs[j] * i / fs);
+      INFO(name(s) << " at " << freqs[j] << " Hz");
+      // scipy.signal.sosfreqz of the double coefficients; 1e-3 dB is a relative error of 1.2e-4.
+      REQUIRE(db(acc) == Approx(ref[j]).margin(1e-3));
+    }
+  }
+}
+
+TEST_CASE("single-precision filtering gives each signal the values it has alone", "[filters]") {
+  const double fs = 4000;
+  const FilterCascade c = site_cascade(Sensor::acoustic_bell, 15, fs);  // first- and second-order sections
+  REQUIRE(single_precision_suffices(c));
+  // Five signals of different lengths: four in lockstep, then one alone; and three: a pair, then one.
+  for (std::size_t count : {5u, 3u}) {
+    const std::size_t lengths[5] = {500, 480, 530, 510, 470};
+    std::vector<std::vector<std::complex<double>>> together(count), alone(count), st_together(count), st_alone(count);
+    std::vector<std::complex<double>*> data(count), state(count);
+    for (std::size_t s = 0; s < count; ++s) {
+      together[s] = alone[s] = transient(lengths[s], 50.0 + 20.0 * s, fs, 5e-3);
+      st_together[s].assign(2 * c.sections.size(), 0.3 * s);  // a non-rest start
+      st_alone[s] = st_together[s];
+      std::complex<double>* d[1] = {alone[s].data()};
+      std::complex<double>* st[1] = {st_alone[s].data()};
+      filter_continue_together_single(c, d, &lengths[s], st, 1);
+      data[s] = together[s].data(), state[s] = st_together[s].data();
+    }
+    filter_continue_together_single(c, data.data(), lengths, state.data(), count);
+    for (std::size_t s = 0; s < count; ++s) {
+      INFO(count << " signals, signal " << s);
+      for (std::size_t i = 0; i < lengths[s]; ++i) REQUIRE(together[s][i] == alone[s][i]);
+      for (std::size_t k = 0; k < st_alone[s].size(); ++k) REQUIRE(st_together[s][k] == st_alone[s][k]);
+    }
+  }
+}
+
+TEST_CASE("output stage at unit gain in float32: samples within full scale unchanged, beyond it clipped", "[filters]") {
+  SiteArray<float> x(2, 5);
+  const float in[2][5] = {{0.1f, -0.99999994f, 0.999999f, 1e-30f, -0.0f}, {0.5f, 1.25f, -0.25f, -1.5f, 0.75f}};
+  for (std::size_t s = 0; s < 2; ++s) std::copy(in[s], in[s] + 5, x.row(s));
+  auto clipped = apply_output_stage(x, 0.0, SampleFormat::float32, 1000);
+  // Site 0 stays within [-1, 1]: float32 at 0 dB keeps every sample bit for bit.
+  for (std::size_t i = 0; i < 5; ++i) REQUIRE(std::memcmp(&x.row(0)[i], &in[0][i], sizeof(float)) == 0);
+  // Site 1 clips at full scale 1.0 (float32 has no quantisation step) and reports two runs.
+  const float expected[5] = {0.5f, 1.0f, -0.25f, -1.0f, 0.75f};
+  for (std::size_t i = 0; i < 5; ++i) REQUIRE(x.at(1, i) == expected[i]);
+  REQUIRE(clipped.size() == 2);
+  REQUIRE(clipped[0].site == 1);
+  REQUIRE(clipped[0].level_db == Approx(20.0 * std::log10(1.25)));
+  REQUIRE(clipped[1].level_db == Approx(20.0 * std::log10(1.5)));
 }

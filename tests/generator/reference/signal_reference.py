@@ -6,6 +6,8 @@
                               scipy.signal.butter(ORDER, FC, KIND, fs=FS, output='sos'), a line per SPEC.
   inst_freq FILE FS         FILE holds float64 samples; prints the instantaneous frequency (Hz) from
                             the unwrapped phase of scipy.signal.hilbert, one value per sample.
+  sosfilt SOSFILE FILE...   SOSFILE as for freqz; prints gain * scipy.signal.sosfilt(sos, x) of each FILE of
+                            float64 samples, one value per line, the files one after the other.
   band_energy FS LO HI FILE...  prints, a line per FILE of float64 samples, the fraction of its
                                 energy between LO and HI Hz (numpy rfft).
 """
@@ -56,6 +58,12 @@ def main(argv):
         f = np.gradient(phase) * fs / (2 * np.pi)
         for v in f:
             print(f"{v:.9g}")
+    elif cmd == "sosfilt":
+        gain, sos = read_sos(argv[2])
+        for path in argv[3:]:
+            x = np.fromfile(path, dtype=np.float64)
+            for v in gain * signal.sosfilt(sos, x):
+                print(f"{v:.17g}")
     elif cmd == "band_energy":
         fs, lo, hi = float(argv[2]), float(argv[3]), float(argv[4])
         for path in argv[5:]:
