@@ -151,8 +151,20 @@ ActivationPlan make_activation_plan(const std::vector<double>& q_s, const Activa
   plan.pulses[kRa] = plan.pulses[kLa];
   plan.atria_identical = true;
   if (!q_s.empty()) {
-    const ActivationPulse& p = plan.pulses[kLv].front();
-    plan.hill_table = HillTable(p.hill_log_ratio_term, p.m1, p.m2, norm);
+    // The table depends on these four numbers only; a thread's plans mostly share them (run-in
+    // and recording, records of one state), so the last table is kept (about 2 M instructions).
+    // (The pulses' own ln(tau2 / tau1) terms differ from the fractions' in the last bits only.)
+    const std::array<double, 4> key = {tm.hill_m1 * std::log(tm.hill_tau2_fraction / tm.hill_tau1_fraction), tm.hill_m1,
+                                       tm.hill_m2, norm};
+    thread_local std::array<double, 4> last_key{};
+    thread_local HillTable last_table;
+    thread_local bool have_last = false;
+    if (!have_last || key != last_key) {
+      last_table = HillTable(key[0], key[1], key[2], key[3]);
+      last_key = key;
+      have_last = true;
+    }
+    plan.hill_table = last_table;
   }
   return plan;
 }
