@@ -29,13 +29,16 @@ inline double hill_unit(double s, double log_ratio_term, double m1, double m2, i
 
 inline int whole_exponent(double m) { return m == std::round(m) && m >= 1.0 && m <= 64.0 ? static_cast<int>(m) : 0; }
 
-// Inlined into every caller: the hot path evaluates six pulses per call.
-[[gnu::always_inline]] inline double shape(const ActivationPulse& p, double t_s) {
+// Inlined into every caller: the hot path evaluates six pulses per call. table: the plan's
+// Hill shape (nullptr or empty: the exact formula everywhere).
+[[gnu::always_inline]] inline double shape(const ActivationPulse& p, double t_s, const HillTable* table) {
   const double u = t_s - p.onset_s;
   if (u <= 0.0) return 0.0;
   if (p.m1 > 0.0) {
     if (u >= kHillCutoff * p.b_s) return 0.0;
-    return p.norm * hill_unit(u * p.rate_b, p.hill_log_ratio_term, p.m1, p.m2, p.hill_m2_whole);
+    const double s = u * p.rate_b;
+    if (table != nullptr && s >= HillTable::kFirstS) return (*table)(s);
+    return p.norm * hill_unit(s, p.hill_log_ratio_term, p.m1, p.m2, p.hill_m2_whole);
   }
   if (u < p.a_s) return 0.5 * (1.0 - fast::cos_half_turn(u * p.rate_a));
   const double w = u - p.a_s;
@@ -60,16 +63,16 @@ inline bool last_started(const std::vector<ActivationPulse>& list, double t_s, s
 }
 
 [[gnu::always_inline]] inline double chamber_activation(const std::vector<ActivationPulse>& list, double t_s,
-                                                        std::size_t& hint) {
+                                                        std::size_t& hint, const HillTable* table) {
   if (!last_started(list, t_s, hint)) return 0.0;
-  double e = shape(list[hint], t_s);
-  if (hint > 0) e = std::max(e, shape(list[hint - 1], t_s));
+  double e = shape(list[hint], t_s, table);
+  if (hint > 0) e = std::max(e, shape(list[hint - 1], t_s, table));
   return e;
 }
 
 }  // namespace
 
-double pulse_shape(const ActivationPulse& p, double t_s) { return shape(p, t_s); }
+double pulse_shape(const ActivationPulse& p, double t_s) { return shape(p, t_s, nullptr); }
 
 double hill_peak(double ratio, double m1, double m2) {
   // The peak lies between tau1 and tau2 for the exponents in use; golden-section search.
@@ -101,17 +104,18 @@ ActivationPulse cosine_pulse(double onset_s, double rise_s, double fall_s) {
 
 double ActivationPlan::activation(int chamber, double t_s) const {
   std::size_t hint = 0;
-  return chamber_activation(pulses[chamber], t_s, hint);
+  return chamber_activation(pulses[chamber], t_s, hint, table());
 }
 
 void ActivationPlan::activations(double t_s, ActivationCursor& c, std::array<double, 4>& e) const {
   if (t_s != c.t_s) {
     // Stored element by element from registers: copying an array just written element by element
     // would stall on store-to-load forwarding.
-    const double lv = chamber_activation(pulses[kLv], t_s, c.pulse[kLv]);
-    const double rv = chamber_activation(pulses[kRv], t_s, c.pulse[kRv]);
-    const double la = chamber_activation(pulses[kLa], t_s, c.pulse[kLa]);
-    const double ra = atria_identical ? la : chamber_activation(pulses[kRa], t_s, c.pulse[kRa]);
+    const HillTable* hill = table();
+    const double lv = chamber_activation(pulses[kLv], t_s, c.pulse[kLv], hill);
+    const double rv = chamber_activation(pulses[kRv], t_s, c.pulse[kRv], hill);
+    const double la = chamber_activation(pulses[kLa], t_s, c.pulse[kLa], nullptr);
+    const double ra = atria_identical ? la : chamber_activation(pulses[kRa], t_s, c.pulse[kRa], nullptr);
     e[kLv] = c.value[kLv] = lv;
     e[kRv] = c.value[kRv] = rv;
     e[kLa] = c.value[kLa] = la;
@@ -146,6 +150,22 @@ ActivationPlan make_activation_plan(const std::vector<double>& q_s, const Activa
   }
   plan.pulses[kRa] = plan.pulses[kLa];
   plan.atria_identical = true;
+  if (!q_s.empty()) {
+    // The table depends on these four numbers only; a thread's plans mostly share them (run-in
+    // and recording, records of one state), so the last table is kept (about 2 M instructions).
+    // (The pulses' own ln(tau2 / tau1) terms differ from the fractions' in the last bits only.)
+    const std::array<double, 4> key = {tm.hill_m1 * std::log(tm.hill_tau2_fraction / tm.hill_tau1_fraction), tm.hill_m1,
+                                       tm.hill_m2, norm};
+    thread_local std::array<double, 4> last_key{};
+    thread_local HillTable last_table;
+    thread_local bool have_last = false;
+    if (!have_last || key != last_key) {
+      last_table = HillTable(key[0], key[1], key[2], key[3]);
+      last_key = key;
+      have_last = true;
+    }
+    plan.hill_table = last_table;
+  }
   return plan;
 }
 

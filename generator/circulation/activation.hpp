@@ -7,6 +7,7 @@
 #include <limits>
 #include <vector>
 
+#include "generator/circulation/hill_table.hpp"
 #include "generator/circulation/parameters.hpp"
 
 namespace stethogen::gen {
@@ -47,12 +48,16 @@ struct ActivationPlan {
   std::array<std::vector<ActivationPulse>, 4> pulses;  // indexed by Chamber
   // The right atrium's pulses are the left's (make_activation_plan): evaluated once for both.
   bool atria_identical = false;
+  // The ventricular pulses' shape for s = u / tau2 >= HillTable::kFirstS (make_activation_plan
+  // builds it for the exponents and tau ratio of all its Hill pulses); empty: the exact formula.
+  HillTable hill_table;
 
   // Activation of one chamber at t: the larger of the latest pulse and the one before it, so a
   // pulse still relaxing when the next begins (very short RR) stays continuous.
   double activation(int chamber, double t_s) const;
   // All four chambers at t, continuing from the cursor's last call.
   void activations(double t_s, ActivationCursor& cursor, std::array<double, 4>& e) const;
+  const HillTable* table() const { return hill_table.empty() ? nullptr : &hill_table; }
 };
 
 double pulse_shape(const ActivationPulse& p, double t_s);

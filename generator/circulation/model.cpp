@@ -3,16 +3,18 @@
 #include <algorithm>
 #include <cmath>
 
+#include "generator/circulation/vector_exp.hpp"
+
 namespace stethogen::gen {
 
 namespace {
 
 constexpr double kDynPerMmhg = 1333.22;
 
-// Time-varying elastance chamber (Suga et al. 1973; exponential EDPVR of Smith et al. 2004).
-inline double chamber_pressure(const ChamberParams& c, double e, double v) {
-  const double dv = v - c.v0_ml;
-  return e * c.ees_mmhg_per_ml * dv + (1.0 - e) * c.ed_a_mmhg * (std::exp(c.ed_b_per_ml * dv) - 1.0);
+// Time-varying elastance chamber (Suga et al. 1973; exponential EDPVR of Smith et al. 2004);
+// dv = V - V0, stiffening = exp(B dv).
+inline double chamber_pressure(const ChamberParams& c, double e, double dv, double stiffening) {
+  return e * c.ees_mmhg_per_ml * dv + (1.0 - e) * c.ed_a_mmhg * (stiffening - 1.0);
 }
 
 inline double compliance_pressure(const ComplianceParams& c, double inverse_compliance, double v) {
@@ -61,13 +63,20 @@ void CirculationModel::outputs(const CirculationState& x, double t, ModelOutputs
   const double pt = respiration_->end_expiratory_mmhg() - fall;
   const double lung_factor = 1.0 / (1.0 + p_.lung_capacitance_per_mmhg * fall);
   activation_->activations(t, activation_cursor_, o.activation);
+  // The five exponentials two at a time (fast::exp2x, the same bits on every x86-64 machine).
+  const double dv_la = x[kVla] - p_.la.v0_ml, dv_lv = x[kVlv] - p_.lv.v0_ml;
+  const double dv_ra = x[kVra] - p_.ra.v0_ml, dv_rv = x[kVrv] - p_.rv.v0_ml;
   const double vpcd = x[kVlv] + x[kVrv] - p_.pericardium_v0_ml;
-  o.p_pericardium = p_.pericardium_p0_mmhg * (std::exp(p_.pericardium_lambda_per_ml * vpcd) - 1.0);
+  const double pericardial_exponent = p_.pericardium_lambda_per_ml * vpcd;
+  const fast::Double2 left = fast::exp2x(fast::Double2{p_.la.ed_b_per_ml * dv_la, p_.lv.ed_b_per_ml * dv_lv});
+  const fast::Double2 right = fast::exp2x(fast::Double2{p_.ra.ed_b_per_ml * dv_ra, p_.rv.ed_b_per_ml * dv_rv});
+  const fast::Double2 pericardial = fast::exp2x(fast::Double2{pericardial_exponent, pericardial_exponent});
+  o.p_pericardium = p_.pericardium_p0_mmhg * (pericardial[0] - 1.0);
   o.p_thorax = pt;
-  o.p_la = chamber_pressure(p_.la, o.activation[kLa], x[kVla]) + pt;
-  o.p_ra = chamber_pressure(p_.ra, o.activation[kRa], x[kVra]) + pt;
-  o.p_lv = chamber_pressure(p_.lv, o.activation[kLv], x[kVlv]) + o.p_pericardium + pt;
-  o.p_rv = chamber_pressure(p_.rv, o.activation[kRv], x[kVrv]) + o.p_pericardium + pt;
+  o.p_la = chamber_pressure(p_.la, o.activation[kLa], dv_la, left[0]) + pt;
+  o.p_ra = chamber_pressure(p_.ra, o.activation[kRa], dv_ra, right[0]) + pt;
+  o.p_lv = chamber_pressure(p_.lv, o.activation[kLv], dv_lv, left[1]) + o.p_pericardium + pt;
+  o.p_rv = chamber_pressure(p_.rv, o.activation[kRv], dv_rv, right[1]) + o.p_pericardium + pt;
   // Intrathoracic vessels feel the pleural pressure; the systemic arteries and veins do not.
   o.p_ao = compliance_pressure(p_.aorta, inverse_.aorta, x[kVao]) + pt;
   o.p_sa = compliance_pressure(p_.systemic_arteries, inverse_.systemic_arteries, x[kVsa]);

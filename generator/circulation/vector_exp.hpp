@@ -1,0 +1,56 @@
+// exp for two doubles at once in one SSE2 vector, for the right-hand side's independent
+// exponentials (the four chambers' EDPVRs, the pericardium). Tang's table method (Tang 1989,
+// ACM Trans Math Softw 15:144): x = (32 k + j) ln2/32 + r with Cody-Waite range reduction
+// (Cody & Waite 1980, Software Manual for the Elementary Functions: ln2/32 in two parts, the
+// first with trailing zeros so that n times it is exact), 2^(j/32) from a table of correctly
+// rounded values, exp(r) - 1 for |r| <= ln2/64 by its Taylor polynomial to r^6 (remainder below
+// 4e-18). Plain double arithmetic in a fixed order (no FMA, which the x86-64 baseline lacks),
+// so every x86-64 machine gets the same bits, unlike the library exp, which picks an FMA
+// version at run time. Within 1 ulp of the correctly rounded result on [-708, 709]; above it
+// +inf, below it 0 (the library gives subnormals there); NaN stays NaN
+// (tests/circulation/test_vector_exp.cpp).
+#pragma once
+
+#include <cstdint>
+#include <limits>
+
+namespace stethogen::gen::fast {
+
+using Double2 = double __attribute__((vector_size(16)));
+using Int2 = std::int64_t __attribute__((vector_size(16)));
+
+// 2^(j/32), j = 0..31, correctly rounded.
+alignas(64) inline constexpr double kExp2Table[32] = {
+    0x1.0000000000000p+0, 0x1.059b0d3158574p+0, 0x1.0b5586cf9890fp+0, 0x1.11301d0125b51p+0,
+    0x1.172b83c7d517bp+0, 0x1.1d4873168b9aap+0, 0x1.2387a6e756238p+0, 0x1.29e9df51fdee1p+0,
+    0x1.306fe0a31b715p+0, 0x1.371a7373aa9cbp+0, 0x1.3dea64c123422p+0, 0x1.44e086061892dp+0,
+    0x1.4bfdad5362a27p+0, 0x1.5342b569d4f82p+0, 0x1.5ab07dd485429p+0, 0x1.6247eb03a5585p+0,
+    0x1.6a09e667f3bcdp+0, 0x1.71f75e8ec5f74p+0, 0x1.7a11473eb0187p+0, 0x1.82589994cce13p+0,
+    0x1.8ace5422aa0dbp+0, 0x1.93737b0cdc5e5p+0, 0x1.9c49182a3f090p+0, 0x1.a5503b23e255dp+0,
+    0x1.ae89f995ad3adp+0, 0x1.b7f76f2fb5e47p+0, 0x1.c199bdd85529cp+0, 0x1.cb720dcef9069p+0,
+    0x1.d5818dcfba487p+0, 0x1.dfc97337b9b5fp+0, 0x1.ea4afa2a490dap+0, 0x1.f50765b6e4540p+0};
+
+inline Double2 exp2x(Double2 x) {
+  constexpr double kShift = 0x1.8p52;               // adding it rounds to a whole number
+  constexpr double kInverseStep = 0x1.71547652b82fep+5;  // 32 / ln 2
+  constexpr double kStepHigh = 0x1.62e42feep-6;     // ln2/32: 32 significant bits,
+  constexpr double kStepLow = 0x1.a39ef35793c76p-38;  // and the rest
+  constexpr double kHighest = 709.0, kLowest = -708.0;
+  constexpr double c2 = 1.0 / 2, c3 = 1.0 / 6, c4 = 1.0 / 24, c5 = 1.0 / 120, c6 = 1.0 / 720;
+  Double2 nd = x * kInverseStep + kShift;
+  const Int2 n = (Int2)nd - (Int2)(Double2{kShift, kShift});  // round(32 x / ln2), from the bits
+  nd -= kShift;
+  const Double2 r = (x - nd * kStepHigh) - nd * kStepLow;
+  const Int2 j = n & 31;
+  // 2^k 2^(j/32) by adding k = (n - j) / 32 to the table value's exponent field.
+  const Double2 table = {kExp2Table[j[0]], kExp2Table[j[1]]};
+  const Double2 scale = (Double2)((Int2)table + ((n - j) << 47));
+  const Double2 r2 = r * r;
+  const Double2 expm1_r = r + r2 * (c2 + c3 * r) + (r2 * r2) * ((c4 + c5 * r) + c6 * r2);
+  const Double2 result = scale + scale * expm1_r;
+  const Double2 inf = {std::numeric_limits<double>::infinity(), std::numeric_limits<double>::infinity()};
+  const Double2 zero = {0.0, 0.0};
+  return x > kHighest ? inf : (x < kLowest ? zero : result);
+}
+
+}  // namespace stethogen::gen::fast
