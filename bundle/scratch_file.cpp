@@ -202,7 +202,7 @@ void get_array(In& in, EncodedArray& a, ScratchEntry& e) {
   a.filters.fletcher32 = in.u8();
   a.filters.run_length = in.u8();
   a.chunks.resize(in.count());
-  for (auto& c : a.chunks) {
+  for (std::size_t k = 0; k < a.chunks.size(); ++k) {
     const std::uint64_t n = in.u64();
     if (n > (std::uint64_t(1) << 32)) throw std::runtime_error("implausible chunk size");
     e.chunk_bytes.push_back(n);  // read (and sized) by load_chunks
