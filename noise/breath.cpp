@@ -28,8 +28,10 @@ constexpr std::size_t kEnvelopeStep = 16;
 double breath_amplitude(const BreathNoise& cfg, double f) {
   // Piecewise power law in log frequency: one logarithm and one exponential per bin.
   double log_gain = 0;
-  if (f > cfg.corner_hz) log_gain += cfg.slope_db_per_octave * kDbPerOctaveToExponent * portable::log(f / cfg.corner_hz);
-  if (f > cfg.upper_hz) log_gain += kUpperRolloffDbPerOctave * kDbPerOctaveToExponent * portable::log(f / cfg.upper_hz);
+  if (f > cfg.corner_hz)
+    log_gain += cfg.slope_db_per_octave * kDbPerOctaveToExponent * portable::log(f / cfg.corner_hz);
+  if (f > cfg.upper_hz)
+    log_gain += kUpperRolloffDbPerOctave * kDbPerOctaveToExponent * portable::log(f / cfg.upper_hz);
   return log_gain == 0 ? 1.0 : portable::exp(log_gain);
 }
 

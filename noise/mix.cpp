@@ -154,12 +154,16 @@ NoiseOutput add_noise(const NoiseInputs& in) {
   double noise_energy = 0;
   for (; i < size; ++i) noise_energy += mix_sample(i);
   for (double v : lane) noise_energy += v;
-  out.snr_achieved_db = noise_energy > 0 ? 10.0 * portable_extra::log10(clean_power * static_cast<double>(size) / noise_energy)
-                                         : std::numeric_limits<double>::infinity();
+  out.snr_achieved_db = noise_energy > 0
+                            ? 10.0 * portable_extra::log10(clean_power * static_cast<double>(size) / noise_energy)
+                            : std::numeric_limits<double>::infinity();
   out.stationary = bg.stationary;
-  for (const PendingEvent& e : bg.events)
+  for (const PendingEvent& e : bg.events) {
+    const double burst_db =
+        10.0 * portable_extra::log10(scale * scale * e.unscaled_power / site_reference(e.burst.site));
     out.artifacts.push_back({e.kind, e.burst.site, e.burst.onset / ctx.sample_rate_hz, e.burst.offset / ctx.sample_rate_hz,
-                             10.0 * portable_extra::log10(scale * scale * e.unscaled_power / site_reference(e.burst.site))});
+                             burst_db});
+  }
 
   // Motion strong enough to clip: set in sensor full-scale units, outside the SNR budget.
   if (profile.motion.enabled && profile.motion.clip) {

@@ -32,7 +32,8 @@ fftwf_plan c2r_plan(std::size_t n) {
   if (it != plans.end()) return it->second;
   fftwf_complex* in = fftwf_alloc_complex(n / 2 + 1);
   float* out = fftwf_alloc_real(n);
-  fftwf_plan plan = fftwf_plan_dft_c2r_1d(static_cast<int>(n), in, out, FFTW_ESTIMATE | FFTW_DESTROY_INPUT | FFTW_NO_SIMD);
+  fftwf_plan plan =
+      fftwf_plan_dft_c2r_1d(static_cast<int>(n), in, out, FFTW_ESTIMATE | FFTW_DESTROY_INPUT | FFTW_NO_SIMD);
   fftwf_free(in);
   fftwf_free(out);
   plans.emplace(n, plan);

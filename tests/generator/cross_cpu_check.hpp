@@ -45,7 +45,8 @@ inline std::string digest_with_masked_cpu(const std::string& test_name) {
   const ssize_t len = readlink("/proc/self/exe", exe, sizeof exe - 1);
   if (len <= 0) return {};
   exe[len] = '\0';
-  const std::string command = std::string("GLIBC_TUNABLES=") + kMaskedTunables + " '" + exe + "' '" + test_name + "' 2>&1";
+  const std::string command =
+      std::string("GLIBC_TUNABLES=") + kMaskedTunables + " '" + exe + "' '" + test_name + "' 2>&1";
   FILE* pipe = popen(command.c_str(), "r");
   if (!pipe) return {};
   std::string digest;

@@ -73,7 +73,8 @@ std::string generator_stages_digest() {
             d.value(e.kind), d.value(e.site), d.value(e.beat), d.value(e.onset_s), d.value(e.peak_s);
             d.value(e.offset_s), d.value(e.onset_index), d.value(e.peak_index), d.value(e.offset_index);
           }
-          for (const BeatRow& b : truth.beats) d.value(b.s1_amplitude), d.value(b.s2_amplitude), d.value(b.a2p2_split_ms);
+          for (const BeatRow& b : truth.beats)
+            d.value(b.s1_amplitude), d.value(b.s2_amplitude), d.value(b.a2p2_split_ms);
           d.values(truth.states.data);
           for (const Artifact& a : apply_output_stage(r.clean, 9.0, SampleFormat::int16, rate_hz))
             d.value(a.onset_s), d.value(a.offset_s), d.value(a.level_db);
