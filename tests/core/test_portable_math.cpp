@@ -127,6 +127,23 @@ TEST_CASE("portable sin and cos are within 1 ulp of the long double ones", "[por
   CHECK(std::isnan(portable::cos(std::nan(""))));
 }
 
+TEST_CASE("portable erfc is within 1.5e-15 relative of the long double erfc", "[portable_math]") {
+  std::mt19937_64 rng(13);
+  std::uniform_real_distribution<double> uniform(-6.0, 26.0);
+  double worst = 0;
+  for (int i = 0; i < 100000; ++i) {
+    const double x = uniform(rng);
+    // Reference: C library erfcl (64-bit significand).
+    const long double r = std::erfc(static_cast<long double>(x));
+    worst = std::max(worst, static_cast<double>(std::fabs((portable::erfc(x) - r) / r)));
+  }
+  CHECK(worst < 1.5e-15);
+  CHECK(portable::erfc(0.0) == 1.0);
+  CHECK(portable::erfc(30.0) == 0.0);
+  CHECK(portable::erfc(-30.0) == 2.0);
+  CHECK(std::isnan(portable::erfc(std::nan(""))));
+}
+
 TEST_CASE("portable float functions round the double ones", "[portable_math]") {
   // Reference: C library expf/logf/sinf/cosf, which are within 1 float ulp of the true value.
   for (float x : {-20.5f, -1.25f, 0.1f, 3.0f, 60.0f}) {
