@@ -4,6 +4,8 @@
 
 #include <cassert>
 #include <cmath>
+
+#include "core/portable_math.hpp"
 #include <limits>
 
 namespace stethogen {
@@ -43,10 +45,10 @@ double RandomStream::normal() {
   // 1 - uniform() lies in (0, 1], so the logarithm is finite.
   double u1 = 1.0 - uniform();
   double u2 = uniform();
-  return std::sqrt(-2.0 * std::log(u1)) * std::cos(2.0 * M_PI * u2);
+  return std::sqrt(-2.0 * portable::log(u1)) * portable::cos(2.0 * M_PI * u2);
 }
 
-double normal_cdf(double x) { return 0.5 * std::erfc(-x / std::sqrt(2.0)); }
+double normal_cdf(double x) { return 0.5 * portable::erfc(-x / std::sqrt(2.0)); }
 
 double normal_quantile(double p) {
   assert(p > 0.0 && p < 1.0);
@@ -62,7 +64,7 @@ double normal_quantile(double p) {
   const double p_low = 0.02425;
   double x;
   if (p < p_low) {
-    double q = std::sqrt(-2 * std::log(p));
+    double q = std::sqrt(-2 * portable::log(p));
     x = (((((c[0] * q + c[1]) * q + c[2]) * q + c[3]) * q + c[4]) * q + c[5]) /
         ((((d[0] * q + d[1]) * q + d[2]) * q + d[3]) * q + 1);
   } else if (p <= 1 - p_low) {
@@ -70,13 +72,13 @@ double normal_quantile(double p) {
     x = (((((a[0] * r + a[1]) * r + a[2]) * r + a[3]) * r + a[4]) * r + a[5]) * q /
         (((((b[0] * r + b[1]) * r + b[2]) * r + b[3]) * r + b[4]) * r + 1);
   } else {
-    double q = std::sqrt(-2 * std::log(1 - p));
+    double q = std::sqrt(-2 * portable::log(1 - p));
     x = -(((((c[0] * q + c[1]) * q + c[2]) * q + c[3]) * q + c[4]) * q + c[5]) /
         ((((d[0] * q + d[1]) * q + d[2]) * q + d[3]) * q + 1);
   }
   // One Halley step against the exact CDF.
   double e = normal_cdf(x) - p;
-  double u = e * std::sqrt(2 * M_PI) * std::exp(x * x / 2);
+  double u = e * std::sqrt(2 * M_PI) * portable::exp(x * x / 2);
   return x - u / (1 + x * u / 2);
 }
 

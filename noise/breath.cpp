@@ -10,6 +10,7 @@
 
 #include "noise/processes.hpp"
 #include "noise/spectral.hpp"
+#include "generator/transmission/portable_extra.hpp"
 
 namespace stethogen::noise {
 
@@ -27,9 +28,11 @@ constexpr std::size_t kEnvelopeStep = 16;
 double breath_amplitude(const BreathNoise& cfg, double f) {
   // Piecewise power law in log frequency: one logarithm and one exponential per bin.
   double log_gain = 0;
-  if (f > cfg.corner_hz) log_gain += cfg.slope_db_per_octave * kDbPerOctaveToExponent * std::log(f / cfg.corner_hz);
-  if (f > cfg.upper_hz) log_gain += kUpperRolloffDbPerOctave * kDbPerOctaveToExponent * std::log(f / cfg.upper_hz);
-  return log_gain == 0 ? 1.0 : std::exp(log_gain);
+  if (f > cfg.corner_hz)
+    log_gain += cfg.slope_db_per_octave * kDbPerOctaveToExponent * portable::log(f / cfg.corner_hz);
+  if (f > cfg.upper_hz)
+    log_gain += kUpperRolloffDbPerOctave * kDbPerOctaveToExponent * portable::log(f / cfg.upper_hz);
+  return log_gain == 0 ? 1.0 : portable::exp(log_gain);
 }
 
 }  // namespace
@@ -43,11 +46,11 @@ Contribution breath_noise(const ProcessContext& ctx, const BreathNoise& cfg,
   // Amplitude envelope over the breath cycle: a sin^2 bump over inspiration, a quieter one over
   // expiration; zero at the phase boundaries, so it is continuous across the cycle wrap.
   const double fi = std::clamp(inspiration_fraction, 0.05, 0.95);
-  const double expiration_gain = std::pow(10.0, cfg.expiration_db / 20.0);
+  const double expiration_gain = portable::pow(10.0, cfg.expiration_db / 20.0);
   auto envelope_at = [&](std::size_t i) {
     double p = resp_phase(static_cast<double>(i) / ctx.sample_rate_hz);
     p -= std::floor(p);
-    double s = p < fi ? std::sin(M_PI * p / fi) : std::sin(M_PI * (p - fi) / (1 - fi));
+    double s = p < fi ? portable::sin(M_PI * p / fi) : portable::sin(M_PI * (p - fi) / (1 - fi));
     return (p < fi ? 1.0 : expiration_gain) * s * s;
   };
   // Each point once: the end of one step is the start of the next.

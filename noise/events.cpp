@@ -5,6 +5,7 @@
 
 #include "noise/processes.hpp"
 #include "noise/spectral.hpp"
+#include "generator/transmission/portable_extra.hpp"
 
 namespace stethogen::noise {
 
@@ -13,7 +14,7 @@ namespace {
 constexpr double kDropoutRampS = 0.005;  // contact is lost and regained over a few ms
 
 double hann(std::size_t i, std::size_t len) {
-  return len < 2 ? 1.0 : 0.5 - 0.5 * std::cos(2 * M_PI * static_cast<double>(i) / (len - 1));
+  return len < 2 ? 1.0 : 0.5 - 0.5 * portable::cos(2 * M_PI * static_cast<double>(i) / (len - 1));
 }
 
 // Scales x[0, len) to unit mean power (or unit peak) over the burst.
@@ -38,7 +39,7 @@ std::vector<Burst> poisson_bursts(RandomStream& rng, const ProcessContext& ctx, 
   const double duration_s = ctx.duration_s();
   double t = 0;
   while (true) {
-    t += -std::log(1.0 - rng.uniform()) / rate_per_s;
+    t += -portable::log(1.0 - rng.uniform()) / rate_per_s;
     if (t >= duration_s) break;
     double length_s = rng.uniform(duration_ms.lo, duration_ms.hi) / 1000.0;
     auto onset = static_cast<std::size_t>(t * ctx.sample_rate_hz);
@@ -86,7 +87,7 @@ Contribution motion_noise(const ProcessContext& ctx, const MotionNoise& cfg) {
       burst.resize(len);
       for (std::size_t i = 0; i < len; ++i) {
         double t = static_cast<double>(i) / ctx.sample_rate_hz, v = push;
-        for (int j = 0; j < 3; ++j) v += a[j] * std::sin(2 * M_PI * f[j] * t + phase[j]);
+        for (int j = 0; j < 3; ++j) v += a[j] * portable::sin(2 * M_PI * f[j] * t + phase[j]);
         burst[i] = static_cast<float>(hann(i, len) * v);
       }
       normalize_burst(burst.data(), len, cfg.clip);
@@ -110,7 +111,7 @@ std::vector<Burst> dropout_intervals(const ProcessContext& ctx, const DropoutNoi
 
 SiteArray<float> dropout_gain(const ProcessContext& ctx, const DropoutNoise& cfg, const std::vector<Burst>& intervals) {
   SiteArray<float> gain(ctx.sites.size(), ctx.n_samples, 1.0f);
-  const double depth = std::pow(10.0, cfg.depth_db / 20.0);
+  const double depth = portable::pow(10.0, cfg.depth_db / 20.0);
   for (const Burst& b : intervals) {
     const std::size_t len = b.offset - b.onset;
     const std::size_t ramp =
@@ -118,7 +119,7 @@ SiteArray<float> dropout_gain(const ProcessContext& ctx, const DropoutNoise& cfg
     float* row = gain.row(static_cast<std::size_t>(b.site)) + b.onset;
     for (std::size_t i = 0; i < len; ++i) {
       std::size_t edge = std::min(i, len - 1 - i);  // distance to the nearer end
-      double w = edge >= ramp ? 1.0 : 0.5 - 0.5 * std::cos(M_PI * static_cast<double>(edge) / ramp);
+      double w = edge >= ramp ? 1.0 : 0.5 - 0.5 * portable::cos(M_PI * static_cast<double>(edge) / ramp);
       double g = 1.0 + (depth - 1.0) * w;  // raised-cosine ramp from 1 to depth
       row[i] = std::min(row[i], static_cast<float>(g));
     }

@@ -5,6 +5,7 @@
 #include <cstdint>
 
 #include "noise/splitmix.hpp"
+#include "generator/transmission/portable_extra.hpp"
 
 namespace stethogen::noise {
 
@@ -34,18 +35,18 @@ constexpr double k2To31 = 2147483648.0;
 ZigguratTables make_tables() {
   ZigguratTables t{};
   double d = kTailStart, prev = d;
-  const double q = kLayerArea / std::exp(-0.5 * d * d);
+  const double q = kLayerArea / portable::exp(-0.5 * d * d);
   t.k[0] = static_cast<std::uint32_t>((d / q) * k2To31);
   t.k[1] = 0;
   t.w[0] = q / k2To31;
   t.w[kLayers - 1] = d / k2To31;
   t.f[0] = 1.0;
-  t.f[kLayers - 1] = std::exp(-0.5 * d * d);
+  t.f[kLayers - 1] = portable::exp(-0.5 * d * d);
   for (int i = kLayers - 2; i >= 1; --i) {
-    d = std::sqrt(-2.0 * std::log(kLayerArea / d + std::exp(-0.5 * d * d)));
+    d = std::sqrt(-2.0 * portable::log(kLayerArea / d + portable::exp(-0.5 * d * d)));
     t.k[i + 1] = static_cast<std::uint32_t>((d / prev) * k2To31);
     prev = d;
-    t.f[i] = std::exp(-0.5 * d * d);
+    t.f[i] = portable::exp(-0.5 * d * d);
     t.w[i] = d / k2To31;
   }
   return t;
@@ -112,12 +113,12 @@ double slow_path(BulkBits& bits, const ZigguratTables& t, std::int32_t j, int i)
     if (i == 0) {
       double xt, y;
       do {
-        xt = -std::log(1.0 - bits.uniform()) / kTailStart;
-        y = -std::log(1.0 - bits.uniform());
+        xt = -portable::log(1.0 - bits.uniform()) / kTailStart;
+        y = -portable::log(1.0 - bits.uniform());
       } while (y + y < xt * xt);
       return j > 0 ? kTailStart + xt : -kTailStart - xt;
     }
-    if (t.f[i] + bits.uniform() * (t.f[i - 1] - t.f[i]) < std::exp(-0.5 * x * x)) return x;
+    if (t.f[i] + bits.uniform() * (t.f[i - 1] - t.f[i]) < portable::exp(-0.5 * x * x)) return x;
     const std::uint32_t r = bits.next_u32();
     i = layer_of(r);
     j = abscissa_of(r);

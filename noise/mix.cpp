@@ -11,12 +11,13 @@
 #include "noise/processes.hpp"
 #include "noise/profile.hpp"
 #include "noise/spectral.hpp"
+#include "generator/transmission/portable_extra.hpp"
 
 namespace stethogen::noise {
 
 namespace {
 
-double db_to_amplitude(double db) { return std::pow(10.0, db / 20.0); }
+double db_to_amplitude(double db) { return portable::pow(10.0, db / 20.0); }
 
 // An event of an additive process whose level is known once the SNR scale is.
 struct PendingEvent {
@@ -82,7 +83,7 @@ Background generate_additive(const ProcessContext& ctx, const NoiseProfile& p, c
 // Artifact level: power over the event relative to the mean clean power at that site.
 double level_db(const float* x, const Burst& b, double scale, double clean_power) {
   double power = mean_power(x + b.onset, b.offset - b.onset) * scale * scale;
-  return 10.0 * std::log10(power / clean_power);
+  return 10.0 * portable_extra::log10(power / clean_power);
 }
 
 }  // namespace
@@ -133,7 +134,7 @@ NoiseOutput add_noise(const NoiseInputs& in) {
   // The additive background, summed at relative levels, then one scale for the SNR.
   Background bg = generate_additive(ctx, profile, in, resp_phase);
   const double raw_power = mean_power(bg.total.data.data(), bg.total.data.size());
-  const double scale = raw_power > 0 ? std::sqrt(clean_power / (raw_power * std::pow(10.0, snr_db / 10.0))) : 0.0;
+  const double scale = raw_power > 0 ? std::sqrt(clean_power / (raw_power * portable::pow(10.0, snr_db / 10.0))) : 0.0;
   // The noisy signal in place of the sum, and the achieved SNR from its float samples
   // (independent partial sums, so that the loop vectorises).
   out.noisy = std::move(bg.total);
@@ -153,12 +154,16 @@ NoiseOutput add_noise(const NoiseInputs& in) {
   double noise_energy = 0;
   for (; i < size; ++i) noise_energy += mix_sample(i);
   for (double v : lane) noise_energy += v;
-  out.snr_achieved_db = noise_energy > 0 ? 10.0 * std::log10(clean_power * static_cast<double>(size) / noise_energy)
-                                         : std::numeric_limits<double>::infinity();
+  out.snr_achieved_db = noise_energy > 0
+                            ? 10.0 * portable_extra::log10(clean_power * static_cast<double>(size) / noise_energy)
+                            : std::numeric_limits<double>::infinity();
   out.stationary = bg.stationary;
-  for (const PendingEvent& e : bg.events)
+  for (const PendingEvent& e : bg.events) {
+    const double burst_db =
+        10.0 * portable_extra::log10(scale * scale * e.unscaled_power / site_reference(e.burst.site));
     out.artifacts.push_back({e.kind, e.burst.site, e.burst.onset / ctx.sample_rate_hz, e.burst.offset / ctx.sample_rate_hz,
-                             10.0 * std::log10(scale * scale * e.unscaled_power / site_reference(e.burst.site))});
+                             burst_db});
+  }
 
   // Motion strong enough to clip: set in sensor full-scale units, outside the SNR budget.
   if (profile.motion.enabled && profile.motion.clip) {

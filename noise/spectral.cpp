@@ -13,7 +13,9 @@ namespace {
 
 // FFTW's planner is not thread-safe, executing a plan on new arrays is: plans are made once
 // per length under a lock and kept for the life of the process. FFTW_ESTIMATE: measuring a
-// plan for a record length costs seconds and gains about 0.1 ms per transform.
+// plan for a record length costs seconds and gains about 0.1 ms per transform. FFTW_NO_SIMD:
+// FFTW picks SSE2/AVX/AVX2 codelets from the CPU, and they round differently; the scalar
+// codelets give the same samples on every x86-64 machine (DESIGN.md "Determinism").
 struct PlanCache {
   std::mutex mutex;
   std::map<std::size_t, fftwf_plan> plans;
@@ -30,7 +32,8 @@ fftwf_plan c2r_plan(std::size_t n) {
   if (it != plans.end()) return it->second;
   fftwf_complex* in = fftwf_alloc_complex(n / 2 + 1);
   float* out = fftwf_alloc_real(n);
-  fftwf_plan plan = fftwf_plan_dft_c2r_1d(static_cast<int>(n), in, out, FFTW_ESTIMATE | FFTW_DESTROY_INPUT);
+  fftwf_plan plan =
+      fftwf_plan_dft_c2r_1d(static_cast<int>(n), in, out, FFTW_ESTIMATE | FFTW_DESTROY_INPUT | FFTW_NO_SIMD);
   fftwf_free(in);
   fftwf_free(out);
   plans.emplace(n, plan);

@@ -9,6 +9,7 @@
 #include "noise/processes.hpp"
 #include "noise/recording.hpp"
 #include "noise/spectral.hpp"
+#include "generator/transmission/portable_extra.hpp"
 
 namespace stethogen::noise {
 
@@ -65,7 +66,7 @@ double spread_over_sites(const ProcessContext& ctx, ProcessKind kind, double coh
   double power = 0;
   for (std::size_t s = 0; s < ctx.sites.size(); ++s) {
     RandomStream rng = ctx.site_stream(kind, s);
-    const float g = static_cast<float>(std::pow(10.0, rng.uniform(-spread_db, spread_db) / 20.0));
+    const float g = static_cast<float>(portable::pow(10.0, rng.uniform(-spread_db, spread_db) / 20.0));
     const std::size_t lag = (1 + static_cast<std::size_t>(ctx.sites[s])) * n / (kAllSites.size() + 1);
     float* row = out.row(s);
     // The local part read from lag on, wrapping once: two runs without a branch per sample.
@@ -83,19 +84,19 @@ namespace {
 // the sensors sit a few centimetres apart, so they hear nearly the same level.
 constexpr double kSiteSpreadDb = 1.0;
 
-double site_gain(RandomStream& rng) { return std::pow(10.0, rng.uniform(-kSiteSpreadDb, kSiteSpreadDb) / 20.0); }
+double site_gain(RandomStream& rng) { return portable::pow(10.0, rng.uniform(-kSiteSpreadDb, kSiteSpreadDb) / 20.0); }
 
 // sin(phase0 + k step) for k = 0, 1, 2, ...: the phasor exp(i (phase0 + k step)) rotated once
 // per call, recomputed from cos and sin every kResync calls so that rounding does not accumulate.
 class SineSteps {
  public:
   SineSteps(double step_rad, double phase0_rad)
-      : step_(step_rad), phase0_(phase0_rad), rot_re_(std::cos(step_rad)), rot_im_(std::sin(step_rad)) {}
+      : step_(step_rad), phase0_(phase0_rad), rot_re_(portable::cos(step_rad)), rot_im_(portable::sin(step_rad)) {}
   double next() {
     if (k_ % kResync == 0) {
       double phase = std::fmod(phase0_ + step_ * static_cast<double>(k_), 2 * M_PI);
-      re_ = std::cos(phase);
-      im_ = std::sin(phase);
+      re_ = portable::cos(phase);
+      im_ = portable::sin(phase);
     }
     const double re = re_, im = im_;
     re_ = re * rot_re_ - im * rot_im_;
@@ -182,11 +183,11 @@ Contribution hum_noise(const ProcessContext& ctx, const HumNoise& cfg) {
     double g = site_gain(site_rng);
     double delta = site_rng.uniform(-0.1, 0.1);
     for (int h = 1; h <= n_harmonics; ++h) {
-      const double a = g * std::pow(10.0, cfg.harmonic_step_db * (h - 1) / 20.0);
+      const double a = g * portable::pow(10.0, cfg.harmonic_step_db * (h - 1) / 20.0);
       const double phase = harmonic_phase[h - 1] + h * delta;
       for (std::size_t k = 0; k < period; ++k) {
         const auto cycles = static_cast<double>((h * f0 * static_cast<std::int64_t>(k)) % fs) / static_cast<double>(fs);
-        wave[s][k] += static_cast<float>(a * std::sin(2 * M_PI * cycles + phase));
+        wave[s][k] += static_cast<float>(a * portable::sin(2 * M_PI * cycles + phase));
       }
     }
   }

@@ -3,6 +3,8 @@
 #include <algorithm>
 #include <cmath>
 
+#include "core/portable_math.hpp"
+
 #include "generator/circulation/fast_cosine.hpp"
 
 namespace stethogen::gen {
@@ -21,9 +23,9 @@ inline double whole_power(double x, int n) {
 // logarithm, (u/tau1)^m1 = exp(m1 ln s + m1 ln(tau2/tau1)) and (u/tau2)^m2 = exp(m2 ln s), or
 // s^m2 by squaring for a whole m2: about half the cost of two pow.
 inline double hill_unit(double s, double log_ratio_term, double m1, double m2, int m2_whole) {
-  const double l = std::log(s);
-  const double g1 = std::exp(m1 * l + log_ratio_term);
-  const double g2 = m2_whole > 0 ? whole_power(s, m2_whole) : std::exp(m2 * l);
+  const double l = portable::log(s);
+  const double g1 = portable::exp(m1 * l + log_ratio_term);
+  const double g2 = m2_whole > 0 ? whole_power(s, m2_whole) : portable::exp(m2 * l);
   return g1 / ((1.0 + g1) * (1.0 + g2));
 }
 
@@ -76,7 +78,7 @@ double pulse_shape(const ActivationPulse& p, double t_s) { return shape(p, t_s, 
 
 double hill_peak(double ratio, double m1, double m2) {
   // The peak lies between tau1 and tau2 for the exponents in use; golden-section search.
-  const double log_ratio_term = -m1 * std::log(ratio);
+  const double log_ratio_term = -m1 * portable::log(ratio);
   const int m2_whole = whole_exponent(m2);
   double a = 0.2 * ratio, b = 1.2;
   const double g = 0.5 * (std::sqrt(5.0) - 1.0);
@@ -90,7 +92,7 @@ double hill_peak(double ratio, double m1, double m2) {
 ActivationPulse hill_pulse(double onset_s, double tau1_s, double tau2_s, double m1, double m2, double norm) {
   ActivationPulse p{onset_s, tau1_s, tau2_s, norm, m1, m2};
   p.rate_b = 1.0 / tau2_s;
-  p.hill_log_ratio_term = m1 * std::log(tau2_s / tau1_s);
+  p.hill_log_ratio_term = m1 * portable::log(tau2_s / tau1_s);
   p.hill_m2_whole = whole_exponent(m2);
   return p;
 }
@@ -154,7 +156,7 @@ ActivationPlan make_activation_plan(const std::vector<double>& q_s, const Activa
     // The table depends on these four numbers only; a thread's plans mostly share them (run-in
     // and recording, records of one state), so the last table is kept (about 2 M instructions).
     // (The pulses' own ln(tau2 / tau1) terms differ from the fractions' in the last bits only.)
-    const std::array<double, 4> key = {tm.hill_m1 * std::log(tm.hill_tau2_fraction / tm.hill_tau1_fraction), tm.hill_m1,
+    const std::array<double, 4> key = {tm.hill_m1 * portable::log(tm.hill_tau2_fraction / tm.hill_tau1_fraction), tm.hill_m1,
                                        tm.hill_m2, norm};
     thread_local std::array<double, 4> last_key{};
     thread_local HillTable last_table;

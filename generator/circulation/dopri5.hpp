@@ -19,6 +19,8 @@
 #include <algorithm>
 #include <array>
 #include <cmath>
+
+#include "core/portable_math.hpp"
 #include <cstddef>
 
 namespace stethogen::gen {
@@ -172,14 +174,14 @@ class Dopri5 {
 
   void decrease(double error) {
     rejected_ = true;
-    dt_ *= std::max(kSafety / std::pow(error, kAlpha), kMaxShrink);
+    dt_ *= std::max(kSafety / portable::pow(error, kAlpha), kMaxShrink);
     limit_step();
   }
   // kSafety previous^beta / error^alpha, from one logarithm per step (the previous one is kept);
   // no growth right after a rejection.
   void increase(double error) {
-    const double log_error = std::log(error);
-    double factor = kSafety * std::exp(kBeta * previous_log_error_ - kAlpha * log_error);
+    const double log_error = portable::log(error);
+    double factor = kSafety * portable::exp(kBeta * previous_log_error_ - kAlpha * log_error);
     factor = std::clamp(factor, kMaxShrink, kMaxGrowth);
     if (rejected_) factor = std::min(factor, 1.0);
     rejected_ = false;

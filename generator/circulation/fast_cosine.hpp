@@ -8,6 +8,8 @@
 
 #include <cmath>
 
+#include "core/portable_math.hpp"
+
 namespace stethogen::gen::fast {
 
 // cos y for |y| <= pi/2: its Taylor polynomial to y^22 (remainder below 1e-19), in z = y^2 by
@@ -36,7 +38,7 @@ inline double cos_small(double y) {
 // other arguments go to std::cos.
 inline double cos_half_turn(double theta) {
   constexpr double kPi = 3.141592653589793116, kPiLo = 1.2246467991473532e-16;  // pi = kPi + kPiLo
-  if (!(theta >= 0.0 && theta <= kPi)) return std::cos(theta);
+  if (!(theta >= 0.0 && theta <= kPi)) return portable::cos(theta);
   if (theta <= 0.5 * kPi) return cos_small(theta);
   return -cos_small((kPi - theta) + kPiLo);
 }

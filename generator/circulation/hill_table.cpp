@@ -3,12 +3,14 @@
 #include <algorithm>
 #include <cmath>
 
+#include "core/portable_math.hpp"
+
 namespace stethogen::gen {
 
 namespace {
 
 double exact_shape(double s, double log_ratio_term, double m1, double m2, double norm) {
-  const double g1 = std::exp(m1 * std::log(s) + log_ratio_term), g2 = std::pow(s, m2);
+  const double g1 = portable::exp(m1 * portable::log(s) + log_ratio_term), g2 = portable::pow(s, m2);
   return norm * g1 / ((1.0 + g1) * (1.0 + g2));
 }
 
@@ -31,7 +33,7 @@ HillTable::HillTable(double log_ratio_term, double m1, double m2, double norm) {
     // Theory and Approximation Practice, ch. 3): Chebyshev coefficients by the discrete cosine
     // sum, then the monomial coefficients from T_{j+1} = 2 x T_j - T_{j-1}.
     for (int k = 0; k < kNodes; ++k) {
-      node_x[k] = std::cos(M_PI * (k + 0.5) / kNodes);
+      node_x[k] = portable::cos(M_PI * (k + 0.5) / kNodes);
       value[k] = exact_shape(s_at(node_x[k]), log_ratio_term, m1, m2, norm);
     }
     std::array<double, kNodes> mono{}, t_prev{}, t_now{}, t_next{};
@@ -39,7 +41,7 @@ HillTable::HillTable(double log_ratio_term, double m1, double m2, double norm) {
     t_now[1] = 1.0;   // T_1
     for (int j = 0; j < kNodes; ++j) {
       double a = 0;
-      for (int k = 0; k < kNodes; ++k) a += value[k] * std::cos(M_PI * j * (k + 0.5) / kNodes);
+      for (int k = 0; k < kNodes; ++k) a += value[k] * portable::cos(M_PI * j * (k + 0.5) / kNodes);
       a *= (j == 0 ? 1.0 : 2.0) / kNodes;
       const std::array<double, kNodes>& t_j = j == 0 ? t_prev : t_now;
       for (int d = 0; d < kNodes; ++d) mono[d] += a * t_j[d];

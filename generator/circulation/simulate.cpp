@@ -3,6 +3,8 @@
 #include <algorithm>
 #include <array>
 #include <cmath>
+
+#include "core/portable_math.hpp"
 #include <vector>
 
 #include <fmt/format.h>
@@ -208,7 +210,7 @@ EngineRun run_engine(const SubjectSpec& subject, const IntegratorSettings& setti
       // changes act (breathing also shifts the mean volumes away from the run-in values).
       const double weight = std::clamp(rr / breath_s, 0.05, 1.0);
       const auto factor = [&](double v, double k, double& v_mean, double& previous) {
-        previous = 0.3 * previous + 0.7 * std::clamp(std::pow(v / v_mean, k), 0.85, 1.2);
+        previous = 0.3 * previous + 0.7 * std::clamp(portable::pow(v / v_mean, k), 0.85, 1.2);
         v_mean += weight * (v - v_mean);
         return previous;
       };

@@ -2,6 +2,8 @@
 
 #include <cmath>
 
+#include "core/portable_math.hpp"
+
 #include "core/check.hpp"
 #include "core/random.hpp"
 
@@ -45,7 +47,7 @@ RhythmPlan make_rhythm(const RhythmParams& p, double end_expiratory_mmhg, std::u
     double rr = rr0;
     if (n >= lead_in_beats) {
       const double rsa = p.rsa_fraction * (1.0 - 2.0 * resp.swing(resp.phase(t)));
-      const double lf = p.lf_fraction * std::sin(2.0 * M_PI * lf_hz * t + lf_phase);
+      const double lf = p.lf_fraction * portable::sin(2.0 * M_PI * lf_hz * t + lf_phase);
       rr = rr0 * (1.0 + rsa + lf);
     }
     beats.push_back(t + rr);

@@ -2,6 +2,7 @@
 
 #include <cmath>
 #include <numbers>
+#include "generator/transmission/portable_extra.hpp"
 
 namespace stethogen::gen {
 namespace {
@@ -10,7 +11,7 @@ double shape(double x) {
   if (x <= 0) return 0.0;
   double r = x / kEnvelopeOrder;
   static_assert(kEnvelopeOrder == 2.0, "the power below is written out for speed");
-  return r * r * std::exp(kEnvelopeOrder - x);
+  return r * r * portable::exp(kEnvelopeOrder - x);
 }
 
 // Bisection on a monotone branch of the envelope.
@@ -38,7 +39,7 @@ double SoundComponent::envelope(double time_s) const { return amplitude * shape(
 
 double SoundComponent::instantaneous_frequency_hz(double time_s) const {
   double t = std::max(0.0, time_s - start_s);
-  return f_end_hz + (f_start_hz - f_end_hz) * std::exp(-t / chirp_tau_s);
+  return f_end_hz + (f_start_hz - f_end_hz) * portable::exp(-t / chirp_tau_s);
 }
 
 std::complex<double> SoundComponent::analytic(double time_s) const {
@@ -47,8 +48,8 @@ std::complex<double> SoundComponent::analytic(double time_s) const {
   double e = envelope(time_s);
   if (e == 0.0) return {0.0, 0.0};
   // Phase = 2 pi * integral of the instantaneous frequency from the start.
-  double cycles = f_end_hz * t + (f_start_hz - f_end_hz) * chirp_tau_s * (1.0 - std::exp(-t / chirp_tau_s));
-  return std::polar(e, 2.0 * std::numbers::pi * cycles);
+  double cycles = f_end_hz * t + (f_start_hz - f_end_hz) * chirp_tau_s * (1.0 - portable::exp(-t / chirp_tau_s));
+  return portable_extra::polar(e, 2.0 * std::numbers::pi * cycles);
 }
 
 namespace {
@@ -117,11 +118,11 @@ void SoundComponent::render(double t_first_s, double rate_hz, std::size_t n, dou
   // advanced in lockstep: their recurrences overlap in the CPU instead of waiting on one chain.
   constexpr std::size_t kBlock = 256, kTogether = 4;
   const double h = 1.0 / rate_hz;
-  const double decay = std::exp(-h / tau_s), chirp_decay = std::exp(-h / chirp_tau_s);
+  const double decay = portable::exp(-h / tau_s), chirp_decay = portable::exp(-h / chirp_tau_s);
   const double sweep_cycles = (f_start_hz - f_end_hz) * chirp_tau_s;
   // The phase advances by 2 pi (f_end h + sweep chirp (1 - chirp_decay)) per sample: a fixed
   // carrier rotation times a small chirp rotation (at most pi f_start h for chirp_tau = 2 tau).
-  const std::complex<double> carrier = std::polar(1.0, 2.0 * std::numbers::pi * f_end_hz * h);
+  const std::complex<double> carrier = portable_extra::polar(1.0, 2.0 * std::numbers::pi * f_end_hz * h);
   const double chirp_step = 2.0 * std::numbers::pi * sweep_cycles * (1.0 - chirp_decay);
   const bool by_rotation = std::fabs(chirp_step) <= kMaxSeriesAngle;
   const double inv_rise = 1.0 / (kEnvelopeOrder * tau_s), scale = weight * amplitude;
@@ -136,10 +137,10 @@ void SoundComponent::render(double t_first_s, double rate_hz, std::size_t n, dou
     // A chirp too fast for the series at this rate: the phase from its closed form per sample.
     while (i < n) {
       const double t0 = time_at(i);
-      double tail = std::exp(kEnvelopeOrder - t0 / tau_s), chirp = std::exp(-t0 / chirp_tau_s);
+      double tail = portable::exp(kEnvelopeOrder - t0 / tau_s), chirp = portable::exp(-t0 / chirp_tau_s);
       for (std::size_t end = std::min(n, i + kBlock); i < end; ++i, tail *= decay, chirp *= chirp_decay) {
         const double t = time_at(i), r = t * inv_rise;
-        out[i] = (scale * r * r * tail) * std::polar(1.0, phase_at(t, chirp));
+        out[i] = (scale * r * r * tail) * portable_extra::polar(1.0, phase_at(t, chirp));
       }
     }
     return;
@@ -157,9 +158,9 @@ void SoundComponent::render(double t_first_s, double rate_hz, std::size_t n, dou
     std::complex<double> phasor[kTogether];
     for (std::size_t b = 0; b < blocks; ++b) {
       const double t = time_at(i + b * kBlock);
-      tail[b] = std::exp(kEnvelopeOrder - t / tau_s);  // exp(k - x)
-      chirp[b] = std::exp(-t / chirp_tau_s);
-      phasor[b] = std::polar(1.0, phase_at(t, chirp[b]));
+      tail[b] = portable::exp(kEnvelopeOrder - t / tau_s);  // exp(k - x)
+      chirp[b] = portable::exp(-t / chirp_tau_s);
+      phasor[b] = portable_extra::polar(1.0, phase_at(t, chirp[b]));
     }
     // Per-sample rotations carrier * exp(i chirp_step chirp): independent of each other (the
     // partial block's values past its end are not used).

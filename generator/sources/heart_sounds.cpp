@@ -7,6 +7,7 @@
 
 #include "core/random.hpp"
 #include "generator/sources/series_probe.hpp"
+#include "generator/transmission/portable_extra.hpp"
 
 namespace stethogen::gen {
 namespace {
@@ -154,7 +155,7 @@ std::optional<SoundComponent> atrial_filling(const BeatHemodynamics& b, const Se
                         v);
 }
 
-double log_normal(RandomStream& rng, double sd) { return std::exp(sd * rng.normal()); }
+double log_normal(RandomStream& rng, double sd) { return portable::exp(sd * rng.normal()); }
 
 }  // namespace
 
@@ -177,9 +178,9 @@ SoundComponent make_component(EventKind kind, std::int32_t beat, double start_s,
   c.kind = kind;
   c.beat = beat;
   c.start_s = start_s;
-  c.amplitude = law.gain_au * std::pow(drive / law.drive_ref, law.drive_exponent) * variation.gain;
+  c.amplitude = law.gain_au * portable::pow(drive / law.drive_ref, law.drive_exponent) * variation.gain;
   double load = std::max(load_mmhg, kMinLoadMmhg);
-  c.f_end_hz = law.pitch_ref_hz * std::pow(load / law.load_ref_mmhg, law.pitch_exponent) * variation.pitch;
+  c.f_end_hz = law.pitch_ref_hz * portable::pow(load / law.load_ref_mmhg, law.pitch_exponent) * variation.pitch;
   c.f_start_hz = c.f_end_hz * law.chirp_ratio;
   c.tau_s = 1.0 / (2.0 * std::numbers::pi * law.damping_ratio * variation.damping * c.f_end_hz);
   // The frequency falls over about the component's decay (Xu et al. 2000).

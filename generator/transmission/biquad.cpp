@@ -4,6 +4,7 @@
 #include <cmath>
 #include <cstring>
 #include <numbers>
+#include "generator/transmission/portable_extra.hpp"
 
 namespace stethogen::gen {
 namespace {
@@ -14,7 +15,7 @@ constexpr double kMaxCornerFraction = 0.45;  // of the sample rate
 // Pre-warped analogue corner for the bilinear transform with K = 2 fs (scipy's convention).
 double prewarp(double corner_hz, double fs_hz) {
   double f = std::min(corner_hz, max_corner_hz(fs_hz));
-  return std::tan(kPi * f / fs_hz);  // = w_analogue / (2 fs)
+  return portable_extra::tan(kPi * f / fs_hz);  // = w_analogue / (2 fs)
 }
 
 std::complex<double> section_response(const Biquad& s, std::complex<double> z_inv) {
@@ -54,16 +55,16 @@ Biquad butter_highpass2(double corner_hz, double fs_hz) {
 }
 
 Biquad peaking(double centre_hz, double q, double gain_db, double fs_hz) {
-  double a = std::pow(10.0, gain_db / 40.0);
+  double a = portable::pow(10.0, gain_db / 40.0);
   double w0 = 2.0 * kPi * std::min(centre_hz, max_corner_hz(fs_hz)) / fs_hz;
-  double alpha = std::sin(w0) / (2.0 * q);
+  double alpha = portable::sin(w0) / (2.0 * q);
   double a0 = 1.0 + alpha / a;
-  return {(1.0 + alpha * a) / a0, -2.0 * std::cos(w0) / a0, (1.0 - alpha * a) / a0, -2.0 * std::cos(w0) / a0,
+  return {(1.0 + alpha * a) / a0, -2.0 * portable::cos(w0) / a0, (1.0 - alpha * a) / a0, -2.0 * portable::cos(w0) / a0,
           (1.0 - alpha / a) / a0};
 }
 
 std::complex<double> FilterCascade::response(double frequency_hz, double fs_hz) const {
-  std::complex<double> z_inv = std::polar(1.0, -2.0 * kPi * frequency_hz / fs_hz);
+  std::complex<double> z_inv = portable_extra::polar(1.0, -2.0 * kPi * frequency_hz / fs_hz);
   std::complex<double> h = gain;
   for (const Biquad& s : sections) h *= section_response(s, z_inv);
   return h;
@@ -78,7 +79,7 @@ double FilterCascade::slowest_time_constant_s(double fs_hz) const {
       largest_radius = std::max(largest_radius, std::abs(p));
   }
   if (largest_radius <= 0.0) return 0.0;
-  return -1.0 / (fs_hz * std::log(largest_radius));
+  return -1.0 / (fs_hz * portable::log(largest_radius));
 }
 
 void FilterCascade::append(const FilterCascade& other) {

@@ -3,6 +3,7 @@
 #include <cmath>
 
 #include "core/check.hpp"
+#include "generator/transmission/portable_extra.hpp"
 
 namespace stethogen::gen {
 namespace {
@@ -18,7 +19,7 @@ ChestWallDesign chest_wall_design(double thickness_mm) {
   check_positive("chest_wall_mm", thickness_mm);
   double scale = kReferenceThicknessMm / thickness_mm;
   return {kFirstCornerAtReferenceHz * scale, kSecondCornerAtReferenceHz * scale,
-          std::pow(10.0, -kFlatLossDbPerMm * thickness_mm / 20.0)};
+          portable::pow(10.0, -kFlatLossDbPerMm * thickness_mm / 20.0)};
 }
 
 FilterCascade chest_wall_filter(double thickness_mm, double fs_hz) {

@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include "generator/transmission/portable_extra.hpp"
 
 namespace stethogen::gen {
 namespace {
@@ -81,7 +82,7 @@ void find_clipping(const float* x, std::size_t n, double gain, double upper, std
     if (!over && in_run) {
       in_run = false;
       clipped.push_back({"clipping", site, static_cast<double>(run_start) / rate_hz, static_cast<double>(i) / rate_hz,
-                         20.0 * std::log10(run_peak)});
+                         20.0 * portable_extra::log10(run_peak)});
     }
   }
 }
@@ -90,7 +91,7 @@ void find_clipping(const float* x, std::size_t n, double gain, double upper, std
 
 std::vector<Artifact> apply_output_stage(SiteArray<float>& signal, double gain_db, SampleFormat format,
                                          int sample_rate_hz) {
-  const double gain = std::pow(10.0, gain_db / 20.0);
+  const double gain = portable::pow(10.0, gain_db / 20.0);
   const double step = quantisation_step(format);
   // Integer formats cannot hold +1.0 exactly: the largest code is 1 - step (e.g. 32767/32768).
   const double upper = step > 0 ? 1.0 - step : 1.0;

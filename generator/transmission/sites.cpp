@@ -6,6 +6,7 @@
 #include "core/random.hpp"
 #include "generator/transmission/chest_wall.hpp"
 #include "generator/transmission/sensor.hpp"
+#include "generator/transmission/portable_extra.hpp"
 
 namespace stethogen::gen {
 namespace {
@@ -63,7 +64,7 @@ TransmissionPlan plan_transmission(const SubjectSpec& subject) {
     path.filter = shared;
     for (int c = 0; c < kComponentCount; ++c) {
       auto kind = static_cast<EventKind>(c);
-      path.weight[c] = nominal_site_weight(kind, site) * std::exp(kWeightVariationSd * rng.normal());
+      path.weight[c] = nominal_site_weight(kind, site) * portable::exp(kWeightVariationSd * rng.normal());
       double jitter_ms = rng.truncated_normal(0.0, kDelayVariationSdMs, -kDelayVariationLimitMs,
                                               kDelayVariationLimitMs);
       path.delay_s[c] = nominal_site_delay_s(kind, site) + 1e-3 * jitter_ms;

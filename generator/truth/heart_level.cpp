@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <complex>
+#include "generator/transmission/portable_extra.hpp"
 
 namespace stethogen::gen {
 namespace {
@@ -9,7 +10,7 @@ namespace {
 constexpr double kHeartGridHz = 8000.0;
 
 // e(x) = (x/k)^k exp(k - x) of component.hpp, k = 2.
-double envelope_shape(double x) { return x <= 0 ? 0.0 : 0.25 * x * x * std::exp(2.0 - x); }
+double envelope_shape(double x) { return x <= 0 ? 0.0 : 0.25 * x * x * portable::exp(2.0 - x); }
 
 // The x where e(x) crosses fraction (< 1) on the rising or falling side, to within 2^-40 of the range.
 double crossing(double fraction, bool rising) {

@@ -7,6 +7,7 @@
 #include <string>
 
 #include "core/error.hpp"
+#include "generator/transmission/portable_extra.hpp"
 
 namespace stethogen::gen {
 namespace {
@@ -49,9 +50,10 @@ std::vector<double> decimation_taps(int factor, double frac) {
     double u = frac - (k - half);  // distance from the output, input samples
     double r = u / half;
     if (std::abs(r) > 1.0) continue;
-    double window = std::cyl_bessel_i(0.0, kKaiserBeta * std::sqrt(1.0 - r * r)) / std::cyl_bessel_i(0.0, kKaiserBeta);
+    double window =
+        portable_extra::bessel_i0(kKaiserBeta * std::sqrt(1.0 - r * r)) / portable_extra::bessel_i0(kKaiserBeta);
     double x = std::numbers::pi * cutoff * u;
-    g[k] = window * cutoff * (x == 0.0 ? 1.0 : std::sin(x) / x);
+    g[k] = window * cutoff * (x == 0.0 ? 1.0 : portable::sin(x) / x);
     sum += g[k];
   }
   for (double& v : g) v /= sum;
