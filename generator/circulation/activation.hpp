@@ -13,7 +13,8 @@
 namespace stethogen::gen {
 
 // Ventricular pulses are double-Hill (Stergiopulos et al. 1996), cut to zero after
-// kHillCutoff * tau2 where they are below 1e-8; atrial pulses are raised cosines.
+// kHillCutoff * tau2, where the relaxation term 1 / (1 + 2^m2) leaves about 5e-6 of the peak at
+// the default m2 = 18 (a small step in the right-hand side); atrial pulses are raised cosines.
 struct ActivationPulse {
   double onset_s = 0;
   double a_s = 0;      // Hill: tau1; cosine: rise time to peak
