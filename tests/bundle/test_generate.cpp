@@ -165,19 +165,30 @@ void interrupt_generate(pid_t pid, const fs::path& out, Ready ready) {
   REQUIRE(WIFSIGNALED(status));  // killed part-way, not finished
 }
 
+// An uninterrupted reference bundle of an 80-record recipe, and a run of the same recipe killed
+// (SIGKILL) once at least `saved` scratch files exist.
+struct InterruptedRun {
+  fs::path recipe, reference, out, workdir;
+};
+
+InterruptedRun interrupted_run(const fs::path& dir, const std::string& reference_threads, std::size_t saved) {
+  InterruptedRun r;
+  r.recipe = longer_recipe(dir, 80);
+  r.reference = dir / "reference.h5";
+  REQUIRE(run(generate_cmd(r.recipe, r.reference, reference_threads)).exit_code == 0);
+  r.out = dir / "run.h5";
+  r.workdir = r.out.string() + ".partial";
+  interrupt_generate(start_generate(r.recipe, r.out), r.out, [&] { return count_scratch(r.workdir) >= saved; });
+  return r;
+}
+
 }  // namespace
 
 TEST_CASE("kill -9 leaves no final file and --resume completes an identical bundle", "[generate][safety]") {
   TempDir dir;
-  const fs::path recipe = longer_recipe(dir.path(), 80);
-  const fs::path reference = dir.path() / "reference.h5";
-  REQUIRE(run(generate_cmd(recipe, reference, "--threads 2")).exit_code == 0);
-
-  const fs::path out = dir.path() / "run.h5";
-  const fs::path workdir = out.string() + ".partial";
-  const pid_t pid = start_generate(recipe, out);
   // Some records saved, then killed without warning.
-  interrupt_generate(pid, out, [&] { return count_scratch(workdir) >= 1; });
+  const InterruptedRun killed = interrupted_run(dir.path(), "--threads 2", 1);
+  const fs::path &recipe = killed.recipe, &reference = killed.reference, &out = killed.out, &workdir = killed.workdir;
   REQUIRE_FALSE(fs::exists(out));
   REQUIRE(fs::is_directory(workdir));
 
@@ -193,14 +204,8 @@ TEST_CASE("kill -9 leaves no final file and --resume completes an identical bund
 
 TEST_CASE("a damaged scratch file is made again on resume and the bundle is still identical", "[generate][safety]") {
   TempDir dir;
-  const fs::path recipe = longer_recipe(dir.path(), 80);
-  const fs::path reference = dir.path() / "reference.h5";
-  REQUIRE(run(generate_cmd(recipe, reference, "--threads 1")).exit_code == 0);
-
-  const fs::path out = dir.path() / "run.h5";
-  const fs::path workdir = out.string() + ".partial";
-  const pid_t pid = start_generate(recipe, out);
-  interrupt_generate(pid, out, [&] { return count_scratch(workdir) >= 2; });
+  const InterruptedRun killed = interrupted_run(dir.path(), "--threads 1", 2);
+  const fs::path &recipe = killed.recipe, &reference = killed.reference, &out = killed.out, &workdir = killed.workdir;
   // A power cut can leave a renamed file with lost contents: one flipped byte in the second
   // scratch file.
   const fs::path damaged = scratch_files(workdir).at(1);
@@ -221,14 +226,8 @@ TEST_CASE("a damaged scratch file is made again on resume and the bundle is stil
 TEST_CASE("a damaged chunk in the partial bundle is made again on resume and the bundle is still identical",
           "[generate][safety]") {
   TempDir dir;
-  const fs::path recipe = longer_recipe(dir.path(), 80);
-  const fs::path reference = dir.path() / "reference.h5";
-  REQUIRE(run(generate_cmd(recipe, reference, "--threads 1")).exit_code == 0);
-
-  const fs::path out = dir.path() / "run.h5";
-  const fs::path workdir = out.string() + ".partial";
-  const pid_t pid = start_generate(recipe, out);
-  interrupt_generate(pid, out, [&] { return count_scratch(workdir) >= 2; });
+  const InterruptedRun killed = interrupted_run(dir.path(), "--threads 1", 2);
+  const fs::path &recipe = killed.recipe, &reference = killed.reference, &out = killed.out, &workdir = killed.workdir;
   // The chunks are only in the partial bundle (the run's data file): one flipped bit in a chunk of
   // the first record of the second scratch file, as a power cut could leave it.
   const fs::path scratch = scratch_files(workdir).at(1);
@@ -253,13 +252,8 @@ TEST_CASE("a damaged chunk in the partial bundle is made again on resume and the
 
 TEST_CASE("kill -9 again while --resume rebuilds the bundle, then --resume: still identical", "[generate][safety]") {
   TempDir dir;
-  const fs::path recipe = longer_recipe(dir.path(), 80);
-  const fs::path reference = dir.path() / "reference.h5";
-  REQUIRE(run(generate_cmd(recipe, reference, "--threads 2")).exit_code == 0);
-
-  const fs::path out = dir.path() / "run.h5";
-  const fs::path workdir = out.string() + ".partial";
-  interrupt_generate(start_generate(recipe, out), out, [&] { return count_scratch(workdir) >= 2; });
+  const InterruptedRun killed = interrupted_run(dir.path(), "--threads 2", 2);
+  const fs::path &recipe = killed.recipe, &reference = killed.reference, &out = killed.out, &workdir = killed.workdir;
   const std::uint64_t saved = first_record(scratch_files(workdir).at(1));
   // The resumed run rebuilds the saved records into a second data file: killed once that exists,
   // with records in both (or all in the second).

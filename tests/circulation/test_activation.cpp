@@ -6,6 +6,7 @@
 #include <cmath>
 #include <random>
 
+#include "circulation/hill_reference.hpp"
 #include "generator/circulation/activation.hpp"
 #include "generator/rhythm/respiration.hpp"
 
@@ -13,14 +14,7 @@ using namespace stethogen::gen;
 
 namespace {
 
-// Stergiopulos et al. 1996 (Am J Physiol 270:H2050), double-Hill activation, with std::pow as
-// the general-purpose reference.
-double double_hill_with_pow(const ActivationPulse& p, double t_s) {
-  const double u = t_s - p.onset_s;
-  if (u <= 0.0 || u >= kHillCutoff * p.b_s) return 0.0;
-  const double g1 = std::pow(u / p.a_s, p.m1), g2 = std::pow(u / p.b_s, p.m2);
-  return p.norm * g1 / (1.0 + g1) / (1.0 + g2);
-}
+using test::double_hill_with_pow;
 
 void check_against_pow(const ActivationPulse& p) {
   double peak = 0;

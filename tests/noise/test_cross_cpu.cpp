@@ -7,7 +7,7 @@
 
 #include <fftw3.h>
 
-#include "../generator/cross_cpu_check.hpp"
+#include "cross_cpu_check.hpp"
 #include "noise/spectral.hpp"
 #include "noise_helpers.hpp"
 
