@@ -182,6 +182,24 @@ InterruptedRun interrupted_run(const fs::path& dir, const std::string& reference
   return r;
 }
 
+// One flipped bit at `at`, as a power cut can leave a file whose contents were lost.
+void flip_bit(const fs::path& file, std::size_t at, unsigned char mask) {
+  std::string bytes = read_bytes(file);
+  bytes.at(at) = static_cast<char>(bytes[at] ^ mask);
+  std::ofstream(file, std::ios::binary | std::ios::trunc) << bytes;
+}
+
+// --resume notices the damage, makes the records from `first` on again and ends with the bundle
+// an uninterrupted run makes.
+void require_resume_remakes(const InterruptedRun& killed, std::uint64_t first) {
+  RunResult resumed = run(generate_cmd(killed.recipe, killed.out, "--resume --threads 2"));
+  INFO(resumed.output);
+  REQUIRE(resumed.exit_code == 0);
+  REQUIRE(resumed.output.find("damaged scratch file") != std::string::npos);
+  REQUIRE(resumed.output.find("resuming at record " + std::to_string(first) + " ") != std::string::npos);
+  REQUIRE(read_bytes(killed.out) == read_bytes(killed.reference));
+}
+
 }  // namespace
 
 TEST_CASE("kill -9 leaves no final file and --resume completes an identical bundle", "[generate][safety]") {
@@ -205,49 +223,29 @@ TEST_CASE("kill -9 leaves no final file and --resume completes an identical bund
 TEST_CASE("a damaged scratch file is made again on resume and the bundle is still identical", "[generate][safety]") {
   TempDir dir;
   const InterruptedRun killed = interrupted_run(dir.path(), "--threads 1", 2);
-  const fs::path &recipe = killed.recipe, &reference = killed.reference, &out = killed.out, &workdir = killed.workdir;
-  // A power cut can leave a renamed file with lost contents: one flipped byte in the second
-  // scratch file.
-  const fs::path damaged = scratch_files(workdir).at(1);
+  // A renamed file with lost contents: one flipped bit in the second scratch file.
+  const fs::path damaged = scratch_files(killed.workdir).at(1);
   const std::uint64_t first = first_record(damaged);
   REQUIRE(first >= 1);
-  std::string bytes = read_bytes(damaged);
-  bytes[bytes.size() / 2] = static_cast<char>(bytes[bytes.size() / 2] ^ 0x04);
-  std::ofstream(damaged, std::ios::binary | std::ios::trunc) << bytes;
-
-  RunResult resumed = run(binary() + " generate " + quote(recipe) + " -o " + quote(out) + " --resume --threads 2");
-  INFO(resumed.output);
-  REQUIRE(resumed.exit_code == 0);
-  REQUIRE(resumed.output.find("damaged scratch file") != std::string::npos);
-  REQUIRE(resumed.output.find("resuming at record " + std::to_string(first) + " ") != std::string::npos);
-  REQUIRE(read_bytes(out) == read_bytes(reference));
+  flip_bit(damaged, fs::file_size(damaged) / 2, 0x04);
+  require_resume_remakes(killed, first);
 }
 
 TEST_CASE("a damaged chunk in the partial bundle is made again on resume and the bundle is still identical",
           "[generate][safety]") {
   TempDir dir;
   const InterruptedRun killed = interrupted_run(dir.path(), "--threads 1", 2);
-  const fs::path &recipe = killed.recipe, &reference = killed.reference, &out = killed.out, &workdir = killed.workdir;
   // The chunks are only in the partial bundle (the run's data file): one flipped bit in a chunk of
-  // the first record of the second scratch file, as a power cut could leave it.
-  const fs::path scratch = scratch_files(workdir).at(1);
+  // the first record of the second scratch file.
+  const fs::path scratch = scratch_files(killed.workdir).at(1);
   const std::uint64_t first = first_record(scratch);
   REQUIRE(first >= 1);
   const stethogen::bundle::ScratchEntry entry = stethogen::bundle::load_scratch(scratch).at(0);
   REQUIRE(entry.record.has_value());
   REQUIRE(entry.generation == 1);
-  const fs::path data = workdir / stethogen::bundle::data_file_name(1);
-  std::string bytes = read_bytes(data);
-  const std::size_t at = entry.chunk_offsets.at(entry.chunk_offsets.size() / 2) + 3;
-  bytes[at] = static_cast<char>(bytes[at] ^ 0x20);
-  std::ofstream(data, std::ios::binary | std::ios::trunc) << bytes;
-
-  RunResult resumed = run(generate_cmd(recipe, out, "--resume --threads 2"));
-  INFO(resumed.output);
-  REQUIRE(resumed.exit_code == 0);
-  REQUIRE(resumed.output.find("damaged scratch file") != std::string::npos);
-  REQUIRE(resumed.output.find("resuming at record " + std::to_string(first) + " ") != std::string::npos);
-  REQUIRE(read_bytes(out) == read_bytes(reference));
+  flip_bit(killed.workdir / stethogen::bundle::data_file_name(1),
+           entry.chunk_offsets.at(entry.chunk_offsets.size() / 2) + 3, 0x20);
+  require_resume_remakes(killed, first);
 }
 
 TEST_CASE("kill -9 again while --resume rebuilds the bundle, then --resume: still identical", "[generate][safety]") {
