@@ -35,7 +35,7 @@ inline double cos_small(double y) {
 }
 
 // cos theta for theta in [0, pi] (the raised-cosine pulses), reflected about pi/2 above it;
-// other arguments go to std::cos.
+// other arguments go to portable::cos.
 inline double cos_half_turn(double theta) {
   constexpr double kPi = 3.141592653589793116, kPiLo = 1.2246467991473532e-16;  // pi = kPi + kPiLo
   if (!(theta >= 0.0 && theta <= kPi)) return portable::cos(theta);
