@@ -15,6 +15,14 @@ namespace stethogen::bench {
 // CPU time of the calling thread (s): immune to other processes on a shared machine.
 double thread_cpu_s();
 
+// The CPU and its single-thread SHA-256 throughput (OpenSSL, MB/s; 0 if unavailable), printed
+// beside the figures so that runs on different machines can be compared (bench/machine_speed.cpp).
+struct MachineSpeed {
+  std::string cpu_model;
+  double sha256_mb_per_s = 0;
+};
+MachineSpeed measure_machine_speed();
+
 // bench/bench.toml with COUNT and DURATION substituted.
 std::string bench_recipe_text(const std::string& source_dir, std::uint64_t count, double duration_s);
 recipe::Recipe bench_recipe(const std::string& source_dir, std::uint64_t count, double duration_s);

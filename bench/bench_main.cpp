@@ -112,6 +112,9 @@ int main(int argc, char** argv) {
     fs::create_directories(scratch);
     double load[3] = {0, 0, 0};
     if (getloadavg(load, 3) > 0) fmt::print("Machine: {} cores, load average {:.1f}\n", std::thread::hardware_concurrency(), load[0]);
+    const bench::MachineSpeed speed = bench::measure_machine_speed();
+    fmt::print("  {}; SHA-256 (OpenSSL, one thread) {:.0f} MB/s: the yardstick for comparing machines\n",
+               speed.cpu_model, speed.sha256_mb_per_s);
 
     {
       const recipe::Recipe stage_recipe = bench::bench_recipe(source, stage_records, 30.0);
