@@ -85,7 +85,10 @@ int main(int argc, char** argv) {
   stethogen::configure_allocator();  // as the stethogen executable does
   CLI::App app{"stethogen benchmark (docs/performance.md)"};
   std::string source = STETHOGEN_SOURCE_DIR, binary, python = "/usr/bin/python3", scratch;
-  std::uint64_t stage_records = 5, thread_records = 40;  // 40: the serial final assembly is a small share, as in a real run
+  // 160: a run's start (FFTW plans) and end (the last records, the final assembly) leave a core
+  // idle for about 0.3 s: with 40 records `generate` measured 1.50-1.65x on two threads, with
+  // 160 records 1.81-1.91x (docs/performance.md).
+  std::uint64_t stage_records = 5, thread_records = 160;
   double memory_duration_s = 5.0;
   std::vector<std::uint64_t> memory_counts{100, 1000};
   bool skip_reference = false, skip_processes = false;
