@@ -4,6 +4,7 @@
 #include <cmath>
 
 #include <fmt/format.h>
+#include <fmt/ranges.h>
 
 #include "bundle/reader_impl.hpp"
 #include "bundle/schema.hpp"
@@ -136,6 +137,24 @@ h5::Id open_dataset(const BundleReader::Impl& m, hid_t group, const std::string&
   return h5::Id(h5::check(H5Dopen2(group, name.c_str(), H5P_DEFAULT), what(m, id, name)));
 }
 
+// The shape of a signal dataset, refused when the file cannot hold it: a damaged file may claim
+// any shape, and allocating it first would exhaust memory. Deflate expands at most 1032:1
+// (zlib's documented limit), shuffle and Fletcher32 not at all, so a dataset needs at least
+// 1/1032 of its bytes in storage (plus a chunk's worth of slack for small datasets).
+std::vector<std::uint64_t> stored_shape(const BundleReader::Impl& m, hid_t ds, const std::string& id,
+                                        const std::string& name) {
+  constexpr double kMostInflation = 1032, kSlackBytes = 1 << 16;
+  std::vector<std::uint64_t> dims = h5::shape(ds);
+  h5::Id type(h5::check(H5Dget_type(ds), what(m, id, name)));
+  double bytes = static_cast<double>(std::max<std::size_t>(H5Tget_size(type), 1));
+  for (std::uint64_t d : dims) bytes *= static_cast<double>(d);
+  const double stored = static_cast<double>(H5Dget_storage_size(ds));
+  if (bytes > kMostInflation * stored + kSlackBytes)
+    throw InputError(fmt::format("{}: its shape [{}] needs {:.0f} bytes but the file holds {:.0f} for it; the bundle "
+                                 "is damaged", what(m, id, name), fmt::join(dims, ", "), bytes, stored));
+  return dims;
+}
+
 Table read_record_table(const BundleReader::Impl& m, const std::string& id, const std::string& name) {
   h5::Id g = open_record(m, id);
   if (!h5::exists(g, name)) return {};
@@ -164,7 +183,7 @@ StoredPcg BundleReader::read_pcg_stored(const std::string& id, bool clean) const
   const std::string name = clean ? "pcg_clean" : "pcg";
   h5::Id g = open_record(m, id);
   h5::Id ds = open_dataset(m, g, id, name);
-  auto dims = h5::shape(ds);
+  auto dims = stored_shape(m, ds, id, name);
   if (dims.size() != 2) throw InputError(what(m, id, name) + ": expected [site, sample]");
   StoredPcg out;
   out.samples = SiteArray<float>(dims[0], dims[1]);
@@ -190,7 +209,8 @@ SiteArray<std::uint8_t> BundleReader::read_states(const std::string& id) const {
   h5::Id g = open_record(m, id);
   if (!h5::exists(g, "states")) return {};
   h5::Id ds = open_dataset(m, g, id, "states");
-  auto dims = h5::shape(ds);
+  auto dims = stored_shape(m, ds, id, "states");
+  if (dims.size() != 2) throw InputError(what(m, id, "states") + ": expected [site, sample]");
   SiteArray<std::uint8_t> out(dims.at(0), dims.at(1));
   h5::read_all(ds, H5T_NATIVE_UINT8, out.data.data(), what(m, id, "states"));
   return out;
@@ -228,7 +248,9 @@ HemodynamicTraces BundleReader::read_hemodynamics(const std::string& id) const {
   for (std::size_t c = 0; c < h.names.size(); ++c) {
     const std::string name = "hemodynamics/" + h.names[c];
     h5::Id ds = open_dataset(m, g, id, name);
-    auto n = h5::shape(ds).at(0);
+    const auto shape = stored_shape(m, ds, id, name);
+    if (shape.size() != 1) throw InputError(what(m, id, name) + ": expected [sample]");
+    const auto n = shape[0];
     if (c == 0) h.data = SiteArray<float>(h.names.size(), n);
     if (n != h.data.n_samples) throw InputError(what(m, id, name) + ": channel lengths differ");
     h5::read_all(ds, H5T_NATIVE_FLOAT, h.data.row(c), what(m, id, name));
@@ -362,9 +384,10 @@ void BundleReader::check_record_data(const std::string& id) const {
     const std::string full = record_path(id) + "/" + names[i];
     if (auto info = dataset_info(full)) {
       h5::Id ds = open_dataset(m, g, id, names[i]);
+      const std::vector<std::uint64_t> shape = stored_shape(m, ds, id, names[i]);
       h5::Id type(h5::check(H5Dget_type(ds), what(m, id, names[i])));
       std::uint64_t n = 1;
-      for (auto d : info->shape) n *= d;
+      for (auto d : shape) n *= d;
       std::vector<unsigned char> buf(n * H5Tget_size(type) + 1);
       h5::read_all(ds, type, buf.data(), what(m, id, names[i]));
     } else {

@@ -48,6 +48,16 @@ with h5py.File(sys.argv[1], "r+") as f:
     del f[sys.argv[2]].attrs[sys.argv[3]]
 )PY";
 
+// Replaces a record's pcg with a dataset that claims 2^34 samples per site and stores none:
+// the shape a damaged file can declare (the bundle fuzzer found one that exhausted memory).
+const char* kClaimHugeShape = R"PY(
+import sys, h5py
+with h5py.File(sys.argv[1], "r+") as f:
+    g = f[sys.argv[2]]
+    del g["pcg"]
+    g.create_dataset("pcg", shape=(4, 2**34), dtype="f4", chunks=(1, 16384))
+)PY";
+
 }  // namespace
 
 TEST_CASE("verify passes a fresh bundle and names a corrupted chunk's record and dataset", "[verify]") {
@@ -128,6 +138,18 @@ TEST_CASE("verify says clearly when a noise recording of the recipe is absent", 
   test::ProcessResult found = test::run_stethogen({"verify", moved, "--sample", "2", "--recipe-dir", dir.path().string()});
   INFO(found.output);
   CHECK(found.exit_code == 0);
+}
+
+TEST_CASE("a signal whose shape the file cannot hold is refused before it is allocated", "[verify]") {
+  test::ScratchDir dir("verify-huge-shape");
+  REQUIRE(test::generate_bundle(dir, "tiny", test::tiny_recipe()).exit_code == 0);
+  const std::string bundle = (dir / "tiny.h5").string();
+  REQUIRE(test::run_python(dir, "huge.py", kClaimHugeShape, {bundle, "/records/r000001"}).exit_code == 0);
+  test::ProcessResult out = test::run_stethogen({"verify", bundle, "--sample", "0"});
+  INFO(out.output);
+  CHECK((out.exit_code == 1 || out.exit_code == 2));
+  CHECK(contains(out.output, "/records/r000001/pcg: its shape [4, 17179869184] needs 274877906944 bytes"));
+  CHECK(contains(out.output, "the bundle is damaged"));
 }
 
 TEST_CASE("verify of an unreadable file exits 2", "[verify]") {
