@@ -87,7 +87,7 @@ int main(int argc, char** argv) {
   std::string source = STETHOGEN_SOURCE_DIR, binary, python = "/usr/bin/python3", scratch;
   // 160: a run's start (FFTW plans) and end (the last records, the final assembly) leave a core
   // idle for about 0.3 s: with 40 records `generate` measured 1.50-1.65x on two threads, with
-  // 160 records 1.81-1.91x (docs/performance.md).
+  // 160 records 1.81-1.96x (docs/performance.md).
   std::uint64_t stage_records = 5, thread_records = 160;
   double memory_duration_s = 5.0;
   std::vector<std::uint64_t> memory_counts{100, 1000};

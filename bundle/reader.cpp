@@ -382,7 +382,7 @@ void BundleReader::check_record_data(const std::string& id) const {
   std::vector<std::string> names = list_group(record_path(id));
   for (std::size_t i = 0; i < names.size(); ++i) {
     const std::string full = record_path(id) + "/" + names[i];
-    if (auto info = dataset_info(full)) {
+    if (dataset_info(full)) {
       h5::Id ds = open_dataset(m, g, id, names[i]);
       const std::vector<std::uint64_t> shape = stored_shape(m, ds, id, names[i]);
       h5::Id type(h5::check(H5Dget_type(ds), what(m, id, names[i])));
