@@ -30,7 +30,8 @@ bool reference_all_finite(const std::vector<float>& x) {
 
 TEST_CASE("all_finite accepts every finite class of binary32", "[check]") {
   using L = std::numeric_limits<float>;
-  const std::vector<float> finite = {0.0f, -0.0f, L::denorm_min(), -L::denorm_min(), from_bits(0x007fffffu),
+  const std::vector<float> finite = {0.0f, -0.0f, L::denorm_min(), -L::denorm_min(),
+                                     from_bits(0x007fffffu) /* largest subnormal */,
                                      L::min(), L::max(), L::lowest(), 1.0f, -1.0f, L::epsilon()};
   REQUIRE(reference_all_finite(finite));
   CHECK(all_finite(finite.data(), finite.size()));
@@ -53,7 +54,7 @@ TEST_CASE("all_finite finds one infinity or NaN at any position and length", "[c
         REQUIRE(reference_all_finite(x) == false);
         CHECK_FALSE(all_finite(x.data(), n));
         // The same array read short of the bad value is finite.
-        CHECK(all_finite(x.data(), at) == reference_all_finite(std::vector<float>(x.begin(), x.begin() + at)));
+        CHECK(all_finite(x.data(), at));
       }
     }
   }
